@@ -1,0 +1,116 @@
+// Times the batched multi-layer two-stream solve. Prints one line per case:
+//   <case>: <X> ns per layer-solve
+// A layer-solve is one layer of one problem (column x spectral point), all stages included
+// (layer optics, adding, output). Best of several repetitions, single thread.
+#include <algorithm>
+#include <chrono>
+#include <cstdio>
+#include <cstdlib>
+#include <cstring>
+#include <random>
+#include <vector>
+
+#include "rt/two_stream.hpp"
+
+using namespace solstrata::rt;
+
+namespace {
+
+struct Problems {
+  std::size_t np, nl;
+  std::vector<double> tau, omega, g, mu0, sol, ad, af, d, f, u;
+};
+
+Problems make(std::size_t np, std::size_t nl) {
+  Problems p{np, nl, {}, {}, {}, {}, {}, {}, {}, {}, {}, {}};
+  std::mt19937_64 rng(20261202);
+  std::uniform_real_distribution<double> U(0.0, 1.0);
+  for (std::size_t i = 0; i < np * nl; ++i) {
+    p.tau.push_back(0.5 * U(rng) * U(rng));
+    p.omega.push_back(0.5 + 0.5 * U(rng));
+    p.g.push_back(0.85 * U(rng));
+  }
+  for (std::size_t i = 0; i < np; ++i) {
+    p.mu0.push_back(0.05 + 0.95 * U(rng));
+    p.sol.push_back(1.0 + U(rng));
+    p.ad.push_back(0.3 * U(rng));
+    p.af.push_back(0.3 * U(rng));
+  }
+  p.d.assign((nl + 1) * np, 0.0);
+  p.f = p.d;
+  p.u = p.d;
+  return p;
+}
+
+template <class F>
+double best_seconds(int reps, F&& f) {
+  double best = 1e300;
+  for (int r = 0; r < reps; ++r) {
+    const auto t0 = std::chrono::steady_clock::now();
+    f();
+    const auto t1 = std::chrono::steady_clock::now();
+    best = std::min(best, std::chrono::duration<double>(t1 - t0).count());
+  }
+  return best;
+}
+
+double checksum(const Problems& p) {
+  double s = 0;
+  for (std::size_t i = 0; i < p.u.size(); ++i) s += p.u[i] + p.d[i] + p.f[i];
+  return s;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  std::size_t np = 4096, nl = 64;
+  int reps = 15;
+  for (int i = 1; i < argc; ++i) {
+    if (!std::strcmp(argv[i], "--help") || !std::strcmp(argv[i], "-h")) {
+      std::printf("usage: two_stream_bench [--problems N] [--layers L] [--reps R]\n"
+                  "Times the batched two-stream column solve; prints '<case>: <X> ns per layer-solve'.\n");
+      return 0;
+    }
+    if (i + 1 < argc && !std::strcmp(argv[i], "--problems")) np = std::strtoul(argv[++i], nullptr, 10);
+    else if (i + 1 < argc && !std::strcmp(argv[i], "--layers")) nl = std::strtoul(argv[++i], nullptr, 10);
+    else if (i + 1 < argc && !std::strcmp(argv[i], "--reps")) reps = std::atoi(argv[++i]);
+  }
+  Problems p = make(np, nl);
+  Workspace work;
+  const double layer_solves = double(np) * double(nl);
+  std::printf("# %zu problems x %zu layers, best of %d, single thread\n", np, nl, reps);
+
+  for (Closure c : kAllClosures) {
+    SolverOptions o;
+    o.closure = c;
+    const ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
+    const double t = best_seconds(reps, [&] { solve_columns_unchecked(in, o, {p.d, p.f, p.u}, work); });
+    std::printf("batched %s: %.2f ns per layer-solve\n", std::string(to_string(c)).c_str(), 1e9 * t / layer_solves);
+  }
+  {
+    SolverOptions o;
+    const ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
+    const double t = best_seconds(reps, [&] { (void)solve_columns(in, o, {p.d, p.f, p.u}, work); });
+    std::printf("batched delta_eddington with input validation: %.2f ns per layer-solve\n", 1e9 * t / layer_solves);
+  }
+  {
+    // One problem at a time: the same kernel called per column (gather a column, solve, scatter).
+    SolverOptions o;
+    std::vector<double> tau(nl), om(nl), g(nl), d(nl + 1), f(nl + 1), u(nl + 1);
+    const double t = best_seconds(std::max(1, reps / 3), [&] {
+      for (std::size_t i = 0; i < np; ++i) {
+        for (std::size_t l = 0; l < nl; ++l) {
+          tau[l] = p.tau[l * np + i];
+          om[l] = p.omega[l * np + i];
+          g[l] = p.g[l * np + i];
+        }
+        const ColumnBatch in{1, nl, tau, om, g, {&p.mu0[i], 1}, {&p.sol[i], 1}, {&p.ad[i], 1}, {&p.af[i], 1}};
+        solve_columns_unchecked(in, o, {d, f, u}, work);
+        p.u[i] = u[0];
+      }
+    });
+    std::printf("one-at-a-time delta_eddington: %.2f ns per layer-solve\n", 1e9 * t / layer_solves);
+  }
+  std::printf("# checksum %.6e\n", checksum(p));
+  return 0;
+}

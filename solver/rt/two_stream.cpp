@@ -1,0 +1,394 @@
+#include "rt/two_stream.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <sstream>
+#include <stdexcept>
+
+#include "rt/fast_exp.hpp"
+
+namespace solstrata::rt {
+namespace {
+
+using detail::exp_nonpositive;
+
+/// Half-width, in k*mu0, of the band around the removable singularity k*mu0 = 1 inside which the
+/// beam response is interpolated between the band edges (see beam_response_near_singularity).
+/// Cancellation error at the edge ~ eps/kSingularBand = 2e-11; interpolation error inside
+/// ~ (kSingularBand)^2 * |d2R/dmu0^2| ~ 1e-10.
+constexpr double kSingularBand = 1e-5;
+
+/// Below this k*tau, X = (1 - exp(-2 k tau)) / (2k) is taken from its Taylor series (truncation
+/// < 4e-17 relative); above it the closed form loses < 1e-14 to cancellation.
+constexpr double kThinSeries = 0.01;
+
+/// Closure coefficients in the form the kernel uses: gamma1 - gamma2 and gamma1 + gamma2 as
+/// linear forms in omega and omega*g, so that gamma1 - gamma2 is exactly 0 at omega = 1.
+struct KernelCoefficients {
+  double g1[3], g2[3], dif[3], sum[3], g3[2];
+  bool delta;
+};
+
+KernelCoefficients kernel_coefficients(Closure closure) {
+  const ClosureCoefficients c = coefficients(closure);
+  KernelCoefficients k{};
+  for (int i = 0; i < 3; ++i) {
+    k.g1[i] = c.g1[i];
+    k.g2[i] = c.g2[i];
+    k.dif[i] = c.g1[i] - c.g2[i];
+    k.sum[i] = c.g1[i] + c.g2[i];
+  }
+  k.g3[0] = c.g3[0];
+  k.g3[1] = c.g3[1];
+  k.delta = c.delta_scaled;
+  return k;
+}
+
+/// Layer quantities shared by the diffuse and the beam solution.
+struct LayerCore {
+  double tau, omega, g;  // after delta scaling
+  double g1, g2, k;      // gamma1, gamma2, k = sqrt(gamma1^2 - gamma2^2)
+  double r, t;           // diffuse-incidence reflectance and transmittance
+};
+
+/// Delta scaling (Joseph, Wiscombe & Weinman 1976, J. Atmos. Sci. 33, 2452) with f = g^2:
+///   tau' = (1 - omega f) tau, omega' = (1 - f) omega / (1 - omega f), g' = (g - f)/(1 - f) = g/(1 + g).
+/// It truncates a forward peak; for g <= 0 there is none and f = 0 (identity), which keeps the
+/// scaled g' inside (-1, 1) (g/(1 + g) would leave it for g < -1/2).
+/// Then the diffuse-incidence solution of Meador & Weaver (1980), eqs. for R and T with
+/// D = (k + gamma1) + (k - gamma1) e^2, e = exp(-k tau), rewritten without cancellation:
+///   X = (1 - e^2)/(2k)  (-> tau as k -> 0),  gamma1 - k = gamma2^2/(gamma1 + k),
+///   R = gamma2 X / (1 + (gamma1 - k) X),  T = e / (1 + (gamma1 - k) X).
+/// These are finite for omega = 1 (k = 0) and tau = 0 without special cases.
+inline LayerCore layer_core(const KernelCoefficients& c, double tau, double omega, double g) {
+  LayerCore L;
+  const double f = (c.delta && g > 0.0) ? g * g : 0.0;
+  const double wf = omega * f;
+  L.tau = (1.0 - wf) * tau;
+  L.omega = std::min(1.0, (1.0 - f) * omega / (1.0 - wf));
+  L.g = (c.delta && g > 0.0) ? g / (1.0 + g) : g;
+  const double wg = L.omega * L.g;
+  L.g1 = c.g1[0] + c.g1[1] * L.omega + c.g1[2] * wg;
+  L.g2 = c.g2[0] + c.g2[1] * L.omega + c.g2[2] * wg;
+  const double dif = c.dif[0] + c.dif[1] * L.omega + c.dif[2] * wg;
+  const double sum = c.sum[0] + c.sum[1] * L.omega + c.sum[2] * wg;
+  L.k = std::sqrt(std::max(0.0, dif * sum));
+  const double y = L.k * L.tau;
+  const double e = exp_nonpositive(-y);
+  // Thin-layer branch: (1 - e^{-2y})/(2y) = 1 - y + 2y^2/3 - y^3/3 + 2y^4/15 - 2y^5/45 + 4y^6/315.
+  const double series =
+      1.0 + y * (-1.0 + y * (2.0 / 3 + y * (-1.0 / 3 + y * (2.0 / 15 + y * (-2.0 / 45 + y * (4.0 / 315))))));
+  const bool thin = y < kThinSeries;
+  const double x = thin ? L.tau * series : (1.0 - e * e) / (2.0 * (thin ? 1.0 : L.k));
+  const double g1mk = L.g2 * L.g2 / (L.g1 + L.k);
+  const double den = 1.0 / (1.0 + g1mk * x);
+  L.r = L.g2 * x * den;
+  L.t = e * den;
+  return L;
+}
+
+/// Beam (collimated) response of a layer, per unit direct flux on a horizontal surface at its top.
+/// Particular solution of the two-stream equations for the source omega gamma3,4 exp(-tau/mu0)/mu0
+/// (Meador & Weaver 1980), F_up = A exp(-tau/mu0), F_down = B exp(-tau/mu0) with
+///   A = omega (gamma3 - alpha2 mu0) / (1 - k^2 mu0^2),  B = -omega (gamma4 + alpha1 mu0) / (1 - k^2 mu0^2),
+///   alpha1 = gamma1 gamma4 + gamma2 gamma3, alpha2 = gamma1 gamma3 + gamma2 gamma4;
+/// plus the layer's diffuse response to the boundary values that cancel it (no diffuse light
+/// enters from above or below):
+///   R_beam = A - R B - T A t0,   T_beam = B t0 - T B - R A t0,   t0 = exp(-tau/mu0).
+/// `inv_sing` is 1/(1 - k^2 mu0^2), passed in so that the caller can keep it finite.
+inline void beam_response(const KernelCoefficients& c, const LayerCore& L, double mu0,
+                          double t0, double inv_sing, double& r_beam, double& t_beam) {
+  const double g3 = c.g3[0] + c.g3[1] * L.g * mu0;
+  const double g4 = 1.0 - g3;
+  const double a1 = L.g1 * g4 + L.g2 * g3;
+  const double a2 = L.g1 * g3 + L.g2 * g4;
+  const double a = L.omega * (g3 - a2 * mu0) * inv_sing;
+  const double b = -L.omega * (g4 + a1 * mu0) * inv_sing;
+  r_beam = a - L.r * b - L.t * a * t0;
+  t_beam = b * t0 - L.t * b - L.r * a * t0;
+}
+
+/// The beam response is analytic in mu0 across k mu0 = 1, where A and B have a removable pole.
+/// Inside |1 - k mu0| < kSingularBand it is interpolated linearly between the band edges
+/// mu0 = (1 -+ kSingularBand)/k, where the closed form is still accurate; the result is
+/// continuous at the edges and within ~1e-10 of the true limit inside.
+void beam_response_near_singularity(const KernelCoefficients& c, const LayerCore& L, double mu0,
+                                    double& r_beam, double& t_beam) {
+  const double mu_lo = (1.0 - kSingularBand) / L.k;
+  const double mu_hi = (1.0 + kSingularBand) / L.k;
+  double r_lo, t_lo, r_hi, t_hi;
+  const auto at = [&](double mu, double& r, double& t) {
+    const double km = L.k * mu;
+    beam_response(c, L, mu, std::exp(-L.tau / mu), 1.0 / (1.0 - km * km), r, t);
+  };
+  at(mu_lo, r_lo, t_lo);
+  at(mu_hi, r_hi, t_hi);
+  const double w = (mu0 - mu_lo) / (mu_hi - mu_lo);
+  r_beam = r_lo + w * (r_hi - r_lo);
+  t_beam = t_lo + w * (t_hi - t_lo);
+}
+
+/// Fills the per-layer responses of one block of problems. Arrays [layer * nb + j].
+struct BlockArrays {
+  double *r, *t, *rb, *tb, *tdir, *dir, *alb, *src, *den, *trans;
+};
+
+BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
+  BlockArrays a{};
+  double* p = base;
+  const auto take = [&](std::size_t n) {
+    double* q = p;
+    p += n;
+    return q;
+  };
+  a.r = take(nl * nb);
+  a.t = take(nl * nb);
+  a.rb = take(nl * nb);
+  a.tb = take(nl * nb);
+  a.tdir = take(nl * nb);
+  a.den = take(nl * nb);
+  a.dir = take((nl + 1) * nb);
+  a.alb = take((nl + 1) * nb);
+  a.src = take((nl + 1) * nb);
+  a.trans = take(nb);
+  return a;
+}
+
+std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (9 * nl + 4) * nb; }
+
+void solve_block(const KernelCoefficients& c, const ColumnBatch& in, std::size_t p0,
+                 std::size_t nb, const LevelFluxes& out, const BlockArrays& w) {
+  const std::size_t np = in.n_problems;
+  const std::size_t nl = in.n_layers;
+  const double* __restrict mu0 = in.mu0.data() + p0;
+
+  // 1. Layer responses: the vectorised loop runs over the problems of the block.
+  for (std::size_t l = 0; l < nl; ++l) {
+    const double* __restrict tau = in.tau.data() + l * np + p0;
+    const double* __restrict om = in.omega.data() + l * np + p0;
+    const double* __restrict gg = in.g.data() + l * np + p0;
+    double* __restrict r = w.r + l * nb;
+    double* __restrict t = w.t + l * nb;
+    double* __restrict rb = w.rb + l * nb;
+    double* __restrict tb = w.tb + l * nb;
+    double* __restrict td = w.tdir + l * nb;
+    int n_near = 0;
+    for (std::size_t j = 0; j < nb; ++j) {
+      const LayerCore L = layer_core(c, tau[j], om[j], gg[j]);
+      const double t0 = exp_nonpositive(-L.tau / mu0[j]);
+      const double km = L.k * mu0[j];
+      const bool near = std::abs(1.0 - km) < kSingularBand;
+      n_near += near ? 1 : 0;
+      const double inv_sing = near ? 0.0 : 1.0 / (1.0 - km * km);
+      double rbj, tbj;
+      beam_response(c, L, mu0[j], t0, inv_sing, rbj, tbj);
+      r[j] = L.r;
+      t[j] = L.t;
+      rb[j] = rbj;
+      tb[j] = tbj;
+      td[j] = t0;
+    }
+    // Rare: a problem within kSingularBand of k mu0 = 1 gets the scalar interpolated form.
+    if (n_near > 0) {
+      for (std::size_t j = 0; j < nb; ++j) {
+        const LayerCore L = layer_core(c, tau[j], om[j], gg[j]);
+        if (std::abs(1.0 - L.k * mu0[j]) < kSingularBand) {
+          beam_response_near_singularity(c, L, mu0[j], rb[j], tb[j]);
+        }
+      }
+    }
+  }
+
+  // 2. Delta-scaled direct beam at each level, per unit direct flux at the top.
+  for (std::size_t j = 0; j < nb; ++j) w.dir[j] = 1.0;
+  for (std::size_t l = 0; l < nl; ++l) {
+    const double* __restrict td = w.tdir + l * nb;
+    const double* __restrict d0 = w.dir + l * nb;
+    double* __restrict d1 = w.dir + (l + 1) * nb;
+    for (std::size_t j = 0; j < nb; ++j) d1[j] = d0[j] * td[j];
+  }
+
+  // 3. Adding, surface upwards: alb[l] is the diffuse reflectance of everything below level l,
+  //    src[l] the upward diffuse flux at level l that the beam generates below it (with no
+  //    diffuse light coming down through level l). Multiple reflections between the layer and
+  //    what lies below sum to the factor den = 1/(1 - R_layer alb_below).
+  {
+    const double* __restrict ad = in.albedo_direct.data() + p0;
+    const double* __restrict af = in.albedo_diffuse.data() + p0;
+    const double* __restrict dsfc = w.dir + nl * nb;
+    double* __restrict alb = w.alb + nl * nb;
+    double* __restrict src = w.src + nl * nb;
+    for (std::size_t j = 0; j < nb; ++j) {
+      alb[j] = af[j];
+      src[j] = ad[j] * dsfc[j];
+    }
+  }
+  for (std::size_t l = nl; l-- > 0;) {
+    const double* __restrict r = w.r + l * nb;
+    const double* __restrict t = w.t + l * nb;
+    const double* __restrict rb = w.rb + l * nb;
+    const double* __restrict tb = w.tb + l * nb;
+    const double* __restrict dir = w.dir + l * nb;
+    const double* __restrict alb_b = w.alb + (l + 1) * nb;
+    const double* __restrict src_b = w.src + (l + 1) * nb;
+    double* __restrict alb = w.alb + l * nb;
+    double* __restrict src = w.src + l * nb;
+    double* __restrict den = w.den + l * nb;
+    for (std::size_t j = 0; j < nb; ++j) {
+      const double d = 1.0 / (1.0 - r[j] * alb_b[j]);
+      den[j] = d;
+      alb[j] = r[j] + t[j] * t[j] * alb_b[j] * d;
+      src[j] = rb[j] * dir[j] + t[j] * (src_b[j] + alb_b[j] * tb[j] * dir[j]) * d;
+    }
+  }
+
+  // 4. Downward sweep: diffuse down at level l+1 from the layer above, closed by the reflections
+  //    below; upward = alb * down + src. Scale to the incident flux and split off the true beam.
+  double* __restrict trans = w.trans;
+  const double* __restrict sol = in.solar.data() + p0;
+  {
+    double* __restrict fd = out.direct_down.data() + p0;
+    double* __restrict fdd = out.diffuse_down.data() + p0;
+    double* __restrict fu = out.diffuse_up.data() + p0;
+    for (std::size_t j = 0; j < nb; ++j) {
+      const double s = mu0[j] * sol[j];
+      trans[j] = 1.0;
+      fd[j] = s;
+      fdd[j] = 0.0;
+      fu[j] = s * w.src[j];
+    }
+  }
+  // The diffuse-down value of the previous level is read back from `out` (scaled), so keep an
+  // unscaled copy in w.tdir, which is no longer needed: level l's diffuse down is tdir[l-1].
+  double* dprev_store = w.tdir;  // reused: [l * nb + j] holds unscaled diffuse down at level l+1
+  for (std::size_t l = 0; l < nl; ++l) {
+    const double* __restrict r = w.r + l * nb;
+    const double* __restrict t = w.t + l * nb;
+    const double* __restrict tb = w.tb + l * nb;
+    const double* __restrict dir = w.dir + l * nb;
+    const double* __restrict dir1 = w.dir + (l + 1) * nb;
+    const double* __restrict alb_b = w.alb + (l + 1) * nb;
+    const double* __restrict src_b = w.src + (l + 1) * nb;
+    const double* __restrict den = w.den + l * nb;
+    const double* __restrict dprev = l == 0 ? nullptr : dprev_store + (l - 1) * nb;
+    double* __restrict dnew = dprev_store + l * nb;
+    const double* __restrict tau = in.tau.data() + l * np + p0;
+    double* __restrict fd = out.direct_down.data() + (l + 1) * np + p0;
+    double* __restrict fdd = out.diffuse_down.data() + (l + 1) * np + p0;
+    double* __restrict fu = out.diffuse_up.data() + (l + 1) * np + p0;
+    for (std::size_t j = 0; j < nb; ++j) {
+      const double above = dprev ? dprev[j] : 0.0;
+      const double d = (t[j] * above + tb[j] * dir[j] + r[j] * src_b[j]) * den[j];
+      dnew[j] = d;
+      const double s = mu0[j] * sol[j];
+      // True (unscaled) beam as a running product of layer transmissions: where delta scaling
+      // leaves tau unchanged (omega = 0 or g <= 0) it equals the scaled beam bit for bit, so the
+      // diffuse flux of a non-scattering column is exactly zero.
+      trans[j] *= exp_nonpositive(-tau[j] / mu0[j]);
+      fd[j] = s * trans[j];
+      fdd[j] = s * ((dir1[j] + d) - trans[j]);
+      fu[j] = s * (alb_b[j] * d + src_b[j]);
+    }
+  }
+}
+
+std::string describe(const char* name, std::size_t index, double value, const char* rule) {
+  std::ostringstream os;
+  os.precision(17);
+  os << name << "[" << index << "] = " << value << " violates " << rule;
+  return os.str();
+}
+
+}  // namespace
+
+std::string SolverOptions::validate() const {
+  if (block_size == 0) return "SolverOptions::block_size = 0 must be at least 1";
+  if (block_size > 65536) return "SolverOptions::block_size must be at most 65536";
+  return {};
+}
+
+void Workspace::reserve(std::size_t n_layers, std::size_t block_size) {
+  const std::size_t n = workspace_size(n_layers, block_size);
+  if (buf_.size() < n) buf_.resize(n);
+}
+
+LayerResponse solve_layer(double tau, double omega, double g, double mu0, Closure closure) {
+  if (!(tau >= 0.0) || !std::isfinite(tau)) throw std::invalid_argument(describe("tau", 0, tau, "0 <= tau < inf"));
+  if (!(omega >= 0.0 && omega <= 1.0)) throw std::invalid_argument(describe("omega", 0, omega, "0 <= omega <= 1"));
+  if (!(g > -1.0 && g < 1.0)) throw std::invalid_argument(describe("g", 0, g, "-1 < g < 1"));
+  if (!(mu0 > 0.0 && mu0 <= 1.0)) throw std::invalid_argument(describe("mu0", 0, mu0, "0 < mu0 <= 1"));
+  const KernelCoefficients c = kernel_coefficients(closure);
+  const LayerCore L = layer_core(c, tau, omega, g);
+  LayerResponse out{};
+  out.r_diffuse = L.r;
+  out.t_diffuse = L.t;
+  out.t_direct = exp_nonpositive(-L.tau / mu0);
+  const double km = L.k * mu0;
+  if (std::abs(1.0 - km) < kSingularBand) {
+    beam_response_near_singularity(c, L, mu0, out.r_beam, out.t_beam);
+  } else {
+    beam_response(c, L, mu0, out.t_direct, 1.0 / (1.0 - km * km), out.r_beam, out.t_beam);
+  }
+  return out;
+}
+
+Status validate(const ColumnBatch& in, const LevelFluxes& out) {
+  const std::size_t np = in.n_problems, nl = in.n_layers;
+  const auto size_is = [&](std::span<const double> s, std::size_t n, const char* name) -> std::string {
+    if (s.size() == n) return {};
+    std::ostringstream os;
+    os << name << " has " << s.size() << " values; expected " << n;
+    return os.str();
+  };
+  struct Sized {
+    std::span<const double> s;
+    std::size_t n;
+    const char* name;
+  };
+  const Sized sized[] = {{in.tau, nl * np, "tau"},
+                         {in.omega, nl * np, "omega"},
+                         {in.g, nl * np, "g"},
+                         {in.mu0, np, "mu0"},
+                         {in.solar, np, "solar"},
+                         {in.albedo_direct, np, "albedo_direct"},
+                         {in.albedo_diffuse, np, "albedo_diffuse"},
+                         {out.direct_down, (nl + 1) * np, "direct_down"},
+                         {out.diffuse_down, (nl + 1) * np, "diffuse_down"},
+                         {out.diffuse_up, (nl + 1) * np, "diffuse_up"}};
+  for (const Sized& z : sized) {
+    if (auto m = size_is(z.s, z.n, z.name); !m.empty()) return {false, m};
+  }
+  for (std::size_t i = 0; i < nl * np; ++i) {
+    if (!(in.tau[i] >= 0.0 && std::isfinite(in.tau[i]))) return {false, describe("tau", i, in.tau[i], "0 <= tau < inf")};
+    if (!(in.omega[i] >= 0.0 && in.omega[i] <= 1.0)) return {false, describe("omega", i, in.omega[i], "0 <= omega <= 1")};
+    if (!(in.g[i] > -1.0 && in.g[i] < 1.0)) return {false, describe("g", i, in.g[i], "-1 < g < 1")};
+  }
+  for (std::size_t p = 0; p < np; ++p) {
+    if (!(in.mu0[p] > 0.0 && in.mu0[p] <= 1.0)) return {false, describe("mu0", p, in.mu0[p], "0 < mu0 <= 1")};
+    if (!(in.solar[p] >= 0.0 && std::isfinite(in.solar[p]))) return {false, describe("solar", p, in.solar[p], "0 <= solar < inf")};
+    if (!(in.albedo_direct[p] >= 0.0 && in.albedo_direct[p] <= 1.0)) return {false, describe("albedo_direct", p, in.albedo_direct[p], "0 <= albedo <= 1")};
+    if (!(in.albedo_diffuse[p] >= 0.0 && in.albedo_diffuse[p] <= 1.0)) return {false, describe("albedo_diffuse", p, in.albedo_diffuse[p], "0 <= albedo <= 1")};
+  }
+  return {};
+}
+
+void solve_columns_unchecked(const ColumnBatch& in, const SolverOptions& options, LevelFluxes out,
+                             Workspace& work) {
+  const KernelCoefficients c = kernel_coefficients(options.closure);
+  const std::size_t bs = std::max<std::size_t>(1, options.block_size);
+  work.reserve(in.n_layers, std::min(bs, std::max<std::size_t>(1, in.n_problems)));
+  for (std::size_t p0 = 0; p0 < in.n_problems; p0 += bs) {
+    const std::size_t nb = std::min(bs, in.n_problems - p0);
+    solve_block(c, in, p0, nb, out, carve(work.data(), in.n_layers, nb));
+  }
+}
+
+Status solve_columns(const ColumnBatch& in, const SolverOptions& options, LevelFluxes out,
+                     Workspace& work) {
+  if (auto m = options.validate(); !m.empty()) return {false, m};
+  if (Status s = validate(in, out); !s.ok) return s;
+  solve_columns_unchecked(in, options, out, work);
+  return {};
+}
+
+}  // namespace solstrata::rt
