@@ -65,23 +65,26 @@ double checksum(const Problems& p) {
 int main(int argc, char** argv) {
   std::size_t np = 4096, nl = 64;
   int reps = 15;
+  std::size_t block = SolverOptions{}.block_size;
   for (int i = 1; i < argc; ++i) {
     if (!std::strcmp(argv[i], "--help") || !std::strcmp(argv[i], "-h")) {
-      std::printf("usage: two_stream_bench [--problems N] [--layers L] [--reps R]\n"
+      std::printf("usage: two_stream_bench [--problems N] [--layers L] [--reps R] [--block B]\n"
                   "Times the batched two-stream column solve; prints '<case>: <X> ns per layer-solve'.\n");
       return 0;
     }
     if (i + 1 < argc && !std::strcmp(argv[i], "--problems")) np = std::strtoul(argv[++i], nullptr, 10);
     else if (i + 1 < argc && !std::strcmp(argv[i], "--layers")) nl = std::strtoul(argv[++i], nullptr, 10);
     else if (i + 1 < argc && !std::strcmp(argv[i], "--reps")) reps = std::atoi(argv[++i]);
+    else if (i + 1 < argc && !std::strcmp(argv[i], "--block")) block = std::strtoul(argv[++i], nullptr, 10);
   }
   Problems p = make(np, nl);
   Workspace work;
   const double layer_solves = double(np) * double(nl);
-  std::printf("# %zu problems x %zu layers, best of %d, single thread\n", np, nl, reps);
+  std::printf("# %zu problems x %zu layers, block %zu, best of %d, single thread\n", np, nl, block, reps);
 
   for (Closure c : kAllClosures) {
     SolverOptions o;
+    o.block_size = block;
     o.closure = c;
     const ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
     const double t = best_seconds(reps, [&] { solve_columns_unchecked(in, o, {p.d, p.f, p.u}, work); });
@@ -89,6 +92,7 @@ int main(int argc, char** argv) {
   }
   {
     SolverOptions o;
+    o.block_size = block;
     const ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
     const double t = best_seconds(reps, [&] { (void)solve_columns(in, o, {p.d, p.f, p.u}, work); });
     std::printf("batched delta_eddington with input validation: %.2f ns per layer-solve\n", 1e9 * t / layer_solves);
@@ -96,6 +100,7 @@ int main(int argc, char** argv) {
   {
     // One problem at a time: the same kernel called per column (gather a column, solve, scatter).
     SolverOptions o;
+    o.block_size = block;
     std::vector<double> tau(nl), om(nl), g(nl), d(nl + 1), f(nl + 1), u(nl + 1);
     const double t = best_seconds(std::max(1, reps / 3), [&] {
       for (std::size_t i = 0; i < np; ++i) {

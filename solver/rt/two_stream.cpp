@@ -49,6 +49,8 @@ struct LayerCore {
   double tau, omega, g;  // after delta scaling
   double g1, g2, k;      // gamma1, gamma2, k = sqrt(gamma1^2 - gamma2^2)
   double r, t;           // diffuse-incidence reflectance and transmittance
+  double inv_sing;       // 1/(1 - k^2 mu0^2), or 0 where near the removable singularity
+  bool near;             // |1 - k mu0| < kSingularBand: the beam needs the interpolated form
 };
 
 /// Delta scaling (Joseph, Wiscombe & Weinman 1976, J. Atmos. Sci. 33, 2452) with f = g^2:
@@ -59,14 +61,30 @@ struct LayerCore {
 /// D = (k + gamma1) + (k - gamma1) e^2, e = exp(-k tau), rewritten without cancellation:
 ///   X = (1 - e^2)/(2k)  (-> tau as k -> 0),  gamma1 - k = gamma2^2/(gamma1 + k),
 ///   R = gamma2 X / (1 + (gamma1 - k) X),  T = e / (1 + (gamma1 - k) X).
-/// These are finite for omega = 1 (k = 0) and tau = 0 without special cases.
-inline LayerCore layer_core(const KernelCoefficients& c, double tau, double omega, double g) {
+/// With X = nx/dx and s = gamma1 + k this needs one division:
+///   q = 1/(s dx + gamma2^2 nx),  R = gamma2 s nx q,  T = e s dx q.
+/// These are finite for omega = 1 (k = 0) and tau = 0 without special cases. The same division
+/// also yields 1/(1 - k^2 mu0^2) for the beam solution (one reciprocal of the product).
+template <bool kDelta>
+inline LayerCore layer_core(const KernelCoefficients& c, double tau, double omega, double g,
+                            double mu0) {
   LayerCore L;
-  const double f = (c.delta && g > 0.0) ? g * g : 0.0;
-  const double wf = omega * f;
-  L.tau = (1.0 - wf) * tau;
-  L.omega = std::min(1.0, (1.0 - f) * omega / (1.0 - wf));
-  L.g = (c.delta && g > 0.0) ? g / (1.0 + g) : g;
+  if constexpr (kDelta) {
+    // One reciprocal serves omega' and g': inv = 1/((1 - omega f)(1 + g)). omega = 1 is mapped
+    // to exactly 1 (a conservative layer must stay conservative to the last bit).
+    const bool forward = g > 0.0;
+    const double gp = forward ? g : 0.0;
+    const double f = gp * gp;
+    const double m = 1.0 - omega * f;
+    const double inv = 1.0 / (m * (1.0 + gp));
+    L.tau = m * tau;
+    L.omega = omega == 1.0 ? 1.0 : std::min(1.0, omega * ((1.0 - f) * (1.0 + gp)) * inv);
+    L.g = forward ? g * m * inv : g;
+  } else {
+    L.tau = tau;
+    L.omega = omega;
+    L.g = g;
+  }
   const double wg = L.omega * L.g;
   L.g1 = c.g1[0] + c.g1[1] * L.omega + c.g1[2] * wg;
   L.g2 = c.g2[0] + c.g2[1] * L.omega + c.g2[2] * wg;
@@ -79,11 +97,19 @@ inline LayerCore layer_core(const KernelCoefficients& c, double tau, double omeg
   const double series =
       1.0 + y * (-1.0 + y * (2.0 / 3 + y * (-1.0 / 3 + y * (2.0 / 15 + y * (-2.0 / 45 + y * (4.0 / 315))))));
   const bool thin = y < kThinSeries;
-  const double x = thin ? L.tau * series : (1.0 - e * e) / (2.0 * (thin ? 1.0 : L.k));
-  const double g1mk = L.g2 * L.g2 / (L.g1 + L.k);
-  const double den = 1.0 / (1.0 + g1mk * x);
-  L.r = L.g2 * x * den;
-  L.t = e * den;
+  const double nx = thin ? L.tau * series : 1.0 - e * e;
+  const double dx = thin ? 1.0 : 2.0 * L.k;
+  const double s = L.g1 + L.k;
+  const double km = L.k * mu0;
+  L.near = std::abs(1.0 - km) < kSingularBand;
+  const double d1 = L.near ? 1.0 : 1.0 - km * km;
+  const double d2 = s * dx + L.g2 * L.g2 * nx;
+  const double inv = 1.0 / (d1 * d2);
+  const double q = d1 * inv;
+  L.inv_sing = L.near ? 0.0 : d2 * inv;
+  const double sq = s * q;
+  L.r = L.g2 * nx * sq;
+  L.t = e * dx * sq;
   return L;
 }
 
@@ -102,10 +128,11 @@ inline void beam_response(const KernelCoefficients& c, const LayerCore& L, doubl
   const double g4 = 1.0 - g3;
   const double a1 = L.g1 * g4 + L.g2 * g3;
   const double a2 = L.g1 * g3 + L.g2 * g4;
-  const double a = L.omega * (g3 - a2 * mu0) * inv_sing;
-  const double b = -L.omega * (g4 + a1 * mu0) * inv_sing;
-  r_beam = a - L.r * b - L.t * a * t0;
-  t_beam = b * t0 - L.t * b - L.r * a * t0;
+  const double wi = L.omega * inv_sing;
+  const double a = wi * (g3 - a2 * mu0);
+  const double b = -wi * (g4 + a1 * mu0);
+  r_beam = a * (1.0 - L.t * t0) - L.r * b;
+  t_beam = b * (t0 - L.t) - L.r * a * t0;
 }
 
 /// The beam response is analytic in mu0 across k mu0 = 1, where A and B have a removable pole.
@@ -128,9 +155,14 @@ void beam_response_near_singularity(const KernelCoefficients& c, const LayerCore
   t_beam = t_lo + w * (t_hi - t_lo);
 }
 
-/// Fills the per-layer responses of one block of problems. Arrays [layer * nb + j].
+/// Scratch arrays of one block of nb problems: per layer [l * nb + j], per level [lev * nb + j].
 struct BlockArrays {
-  double *r, *t, *rb, *tb, *tdir, *dir, *alb, *src, *den, *trans;
+  double *r, *t, *rb, *tb;  // layer: diffuse R, T; beam R, T (per unit direct flux at its top)
+  double *den;              // layer: 1/(1 - R alb_below)
+  double *dir, *dirt;       // level: delta-scaled and true direct beam, per unit at the top
+  double *alb, *src;        // level: diffuse albedo below, beam-generated upward source below
+  double *dn;               // level: diffuse downward flux, per unit direct flux at the top
+  double *inv_mu0;          // problem: 1/mu0
 };
 
 BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
@@ -138,31 +170,62 @@ BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
   double* p = base;
   const auto take = [&](std::size_t n) {
     double* q = p;
-    p += n;
+    p += n * nb;
     return q;
   };
-  a.r = take(nl * nb);
-  a.t = take(nl * nb);
-  a.rb = take(nl * nb);
-  a.tb = take(nl * nb);
-  a.tdir = take(nl * nb);
-  a.den = take(nl * nb);
-  a.dir = take((nl + 1) * nb);
-  a.alb = take((nl + 1) * nb);
-  a.src = take((nl + 1) * nb);
-  a.trans = take(nb);
+  a.r = take(nl);
+  a.t = take(nl);
+  a.rb = take(nl);
+  a.tb = take(nl);
+  a.den = take(nl);
+  a.dir = take(nl + 1);
+  a.dirt = take(nl + 1);
+  a.alb = take(nl + 1);
+  a.src = take(nl + 1);
+  a.dn = take(nl + 1);
+  a.inv_mu0 = take(1);
   return a;
 }
 
-std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (9 * nl + 4) * nb; }
+std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (10 * nl + 6) * nb; }
 
-void solve_block(const KernelCoefficients& c, const ColumnBatch& in, std::size_t p0,
-                 std::size_t nb, const LevelFluxes& out, const BlockArrays& w) {
+/// One step of the upward adding sweep over the problems of a block: combines a layer
+/// (r, t diffuse; rb, tb beam) with what lies below it (diffuse albedo alb_b, beam-generated
+/// upward source src_b) into the same quantities at the layer's top. Multiple reflections
+/// between the layer and the medium below sum to den = 1/(1 - r alb_b).
+/// A separate function so that __restrict on its parameters lets the loop vectorise.
+void adding_step_up(std::size_t nb, const double* __restrict r, const double* __restrict t,
+                    const double* __restrict rb, const double* __restrict tb,
+                    const double* __restrict dir, const double* __restrict alb_b,
+                    const double* __restrict src_b, double* __restrict alb,
+                    double* __restrict src, double* __restrict den) {
+  for (std::size_t j = 0; j < nb; ++j) {
+    const double d = 1.0 / (1.0 - r[j] * alb_b[j]);
+    den[j] = d;
+    alb[j] = r[j] + t[j] * t[j] * alb_b[j] * d;
+    src[j] = rb[j] * dir[j] + t[j] * (src_b[j] + alb_b[j] * tb[j] * dir[j]) * d;
+  }
+}
+
+/// Solves one block of nb problems starting at problem p0 (see solve_columns). Every inner loop
+/// runs over the problems of the block and vectorises; kDelta selects delta scaling at compile
+/// time so that unscaled closures skip its division and the second beam exponential.
+template <bool kDelta>
+void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::size_t p0,
+                 std::size_t nb, const LevelFluxes& out, const BlockArrays w) {
   const std::size_t np = in.n_problems;
   const std::size_t nl = in.n_layers;
   const double* __restrict mu0 = in.mu0.data() + p0;
+  const KernelCoefficients c = coef;  // a local copy: provably not aliased by the output stores
+  double* __restrict inv_mu0 = w.inv_mu0;
+  for (std::size_t j = 0; j < nb; ++j) inv_mu0[j] = 1.0 / mu0[j];
 
-  // 1. Layer responses: the vectorised loop runs over the problems of the block.
+  // 1. Layer responses, and the direct beam (delta-scaled, and true) at each level per unit
+  //    direct flux at the top.
+  for (std::size_t j = 0; j < nb; ++j) {
+    w.dir[j] = 1.0;
+    w.dirt[j] = 1.0;
+  }
   for (std::size_t l = 0; l < nl; ++l) {
     const double* __restrict tau = in.tau.data() + l * np + p0;
     const double* __restrict om = in.omega.data() + l * np + p0;
@@ -171,123 +234,98 @@ void solve_block(const KernelCoefficients& c, const ColumnBatch& in, std::size_t
     double* __restrict t = w.t + l * nb;
     double* __restrict rb = w.rb + l * nb;
     double* __restrict tb = w.tb + l * nb;
-    double* __restrict td = w.tdir + l * nb;
+    const double* __restrict d0 = w.dir + l * nb;
+    const double* __restrict e0 = w.dirt + l * nb;
+    double* __restrict d1 = w.dir + (l + 1) * nb;
+    double* __restrict e1 = w.dirt + (l + 1) * nb;
     int n_near = 0;
+#pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
-      const LayerCore L = layer_core(c, tau[j], om[j], gg[j]);
-      const double t0 = exp_nonpositive(-L.tau / mu0[j]);
-      const double km = L.k * mu0[j];
-      const bool near = std::abs(1.0 - km) < kSingularBand;
-      n_near += near ? 1 : 0;
-      const double inv_sing = near ? 0.0 : 1.0 / (1.0 - km * km);
+      const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu0[j]);
+      const double t0 = exp_nonpositive(-L.tau * inv_mu0[j]);
+      n_near += L.near ? 1 : 0;
       double rbj, tbj;
-      beam_response(c, L, mu0[j], t0, inv_sing, rbj, tbj);
+      beam_response(c, L, mu0[j], t0, L.inv_sing, rbj, tbj);
       r[j] = L.r;
       t[j] = L.t;
       rb[j] = rbj;
       tb[j] = tbj;
-      td[j] = t0;
+      d1[j] = d0[j] * t0;
+      // The true beam sees the unscaled tau; where delta scaling leaves tau unchanged (omega = 0
+      // or g <= 0) both are equal bit for bit, so a non-scattering column has exactly no diffuse light.
+      e1[j] = e0[j] * (kDelta ? exp_nonpositive(-tau[j] * inv_mu0[j]) : t0);
     }
     // Rare: a problem within kSingularBand of k mu0 = 1 gets the scalar interpolated form.
     if (n_near > 0) {
       for (std::size_t j = 0; j < nb; ++j) {
-        const LayerCore L = layer_core(c, tau[j], om[j], gg[j]);
-        if (std::abs(1.0 - L.k * mu0[j]) < kSingularBand) {
+        const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu0[j]);
+        if (L.near) {
           beam_response_near_singularity(c, L, mu0[j], rb[j], tb[j]);
         }
       }
     }
   }
 
-  // 2. Delta-scaled direct beam at each level, per unit direct flux at the top.
-  for (std::size_t j = 0; j < nb; ++j) w.dir[j] = 1.0;
-  for (std::size_t l = 0; l < nl; ++l) {
-    const double* __restrict td = w.tdir + l * nb;
-    const double* __restrict d0 = w.dir + l * nb;
-    double* __restrict d1 = w.dir + (l + 1) * nb;
-    for (std::size_t j = 0; j < nb; ++j) d1[j] = d0[j] * td[j];
-  }
-
-  // 3. Adding, surface upwards: alb[l] is the diffuse reflectance of everything below level l,
+  // 2. Adding, surface upwards: alb[l] is the diffuse reflectance of everything below level l,
   //    src[l] the upward diffuse flux at level l that the beam generates below it (with no
-  //    diffuse light coming down through level l). Multiple reflections between the layer and
-  //    what lies below sum to the factor den = 1/(1 - R_layer alb_below).
+  //    diffuse light coming down through level l).
   {
     const double* __restrict ad = in.albedo_direct.data() + p0;
     const double* __restrict af = in.albedo_diffuse.data() + p0;
     const double* __restrict dsfc = w.dir + nl * nb;
     double* __restrict alb = w.alb + nl * nb;
     double* __restrict src = w.src + nl * nb;
+#pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
       alb[j] = af[j];
       src[j] = ad[j] * dsfc[j];
     }
   }
   for (std::size_t l = nl; l-- > 0;) {
-    const double* __restrict r = w.r + l * nb;
-    const double* __restrict t = w.t + l * nb;
-    const double* __restrict rb = w.rb + l * nb;
-    const double* __restrict tb = w.tb + l * nb;
-    const double* __restrict dir = w.dir + l * nb;
-    const double* __restrict alb_b = w.alb + (l + 1) * nb;
-    const double* __restrict src_b = w.src + (l + 1) * nb;
-    double* __restrict alb = w.alb + l * nb;
-    double* __restrict src = w.src + l * nb;
-    double* __restrict den = w.den + l * nb;
-    for (std::size_t j = 0; j < nb; ++j) {
-      const double d = 1.0 / (1.0 - r[j] * alb_b[j]);
-      den[j] = d;
-      alb[j] = r[j] + t[j] * t[j] * alb_b[j] * d;
-      src[j] = rb[j] * dir[j] + t[j] * (src_b[j] + alb_b[j] * tb[j] * dir[j]) * d;
-    }
+    adding_step_up(nb, w.r + l * nb, w.t + l * nb, w.rb + l * nb, w.tb + l * nb, w.dir + l * nb,
+                   w.alb + (l + 1) * nb, w.src + (l + 1) * nb, w.alb + l * nb, w.src + l * nb,
+                   w.den + l * nb);
   }
 
-  // 4. Downward sweep: diffuse down at level l+1 from the layer above, closed by the reflections
-  //    below; upward = alb * down + src. Scale to the incident flux and split off the true beam.
-  double* __restrict trans = w.trans;
+  // 3. Downward sweep: diffuse down at level l+1 from the layer above, closed by the reflections
+  //    below (D' = (T D + T_beam dir + R src_below) den); upward = alb D' + src. Scale to the
+  //    incident flux mu0 * solar and split off the true beam.
   const double* __restrict sol = in.solar.data() + p0;
-  {
-    double* __restrict fd = out.direct_down.data() + p0;
-    double* __restrict fdd = out.diffuse_down.data() + p0;
-    double* __restrict fu = out.diffuse_up.data() + p0;
-    for (std::size_t j = 0; j < nb; ++j) {
-      const double s = mu0[j] * sol[j];
-      trans[j] = 1.0;
-      fd[j] = s;
-      fdd[j] = 0.0;
-      fu[j] = s * w.src[j];
+  for (std::size_t lev = 0; lev <= nl; ++lev) {
+    const double* __restrict dir = w.dir + lev * nb;
+    const double* __restrict dirt = w.dirt + lev * nb;
+    const double* __restrict alb = w.alb + lev * nb;
+    const double* __restrict src = w.src + lev * nb;
+    double* __restrict dn = w.dn + lev * nb;
+    double* __restrict fd = out.direct_down.data() + lev * np + p0;
+    double* __restrict fdd = out.diffuse_down.data() + lev * np + p0;
+    double* __restrict fu = out.diffuse_up.data() + lev * np + p0;
+    if (lev == 0) {
+#pragma GCC ivdep
+      for (std::size_t j = 0; j < nb; ++j) {
+        const double s = mu0[j] * sol[j];
+        dn[j] = 0.0;
+        fd[j] = s;
+        fdd[j] = 0.0;
+        fu[j] = s * src[j];
+      }
+      continue;
     }
-  }
-  // The diffuse-down value of the previous level is read back from `out` (scaled), so keep an
-  // unscaled copy in w.tdir, which is no longer needed: level l's diffuse down is tdir[l-1].
-  double* dprev_store = w.tdir;  // reused: [l * nb + j] holds unscaled diffuse down at level l+1
-  for (std::size_t l = 0; l < nl; ++l) {
+    const std::size_t l = lev - 1;
     const double* __restrict r = w.r + l * nb;
     const double* __restrict t = w.t + l * nb;
     const double* __restrict tb = w.tb + l * nb;
-    const double* __restrict dir = w.dir + l * nb;
-    const double* __restrict dir1 = w.dir + (l + 1) * nb;
-    const double* __restrict alb_b = w.alb + (l + 1) * nb;
-    const double* __restrict src_b = w.src + (l + 1) * nb;
     const double* __restrict den = w.den + l * nb;
-    const double* __restrict dprev = l == 0 ? nullptr : dprev_store + (l - 1) * nb;
-    double* __restrict dnew = dprev_store + l * nb;
-    const double* __restrict tau = in.tau.data() + l * np + p0;
-    double* __restrict fd = out.direct_down.data() + (l + 1) * np + p0;
-    double* __restrict fdd = out.diffuse_down.data() + (l + 1) * np + p0;
-    double* __restrict fu = out.diffuse_up.data() + (l + 1) * np + p0;
+    const double* __restrict dabove = w.dn + l * nb;
+    const double* __restrict dir_above = w.dir + l * nb;
+#pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
-      const double above = dprev ? dprev[j] : 0.0;
-      const double d = (t[j] * above + tb[j] * dir[j] + r[j] * src_b[j]) * den[j];
-      dnew[j] = d;
+      const double d = (t[j] * dabove[j] + tb[j] * dir_above[j] + r[j] * src[j]) * den[j];
       const double s = mu0[j] * sol[j];
-      // True (unscaled) beam as a running product of layer transmissions: where delta scaling
-      // leaves tau unchanged (omega = 0 or g <= 0) it equals the scaled beam bit for bit, so the
-      // diffuse flux of a non-scattering column is exactly zero.
-      trans[j] *= exp_nonpositive(-tau[j] / mu0[j]);
-      fd[j] = s * trans[j];
-      fdd[j] = s * ((dir1[j] + d) - trans[j]);
-      fu[j] = s * (alb_b[j] * d + src_b[j]);
+      dn[j] = d;
+      fd[j] = s * dirt[j];
+      fdd[j] = s * ((dir[j] + d) - dirt[j]);
+      fu[j] = s * (alb[j] * d + src[j]);
     }
   }
 }
@@ -318,16 +356,16 @@ LayerResponse solve_layer(double tau, double omega, double g, double mu0, Closur
   if (!(g > -1.0 && g < 1.0)) throw std::invalid_argument(describe("g", 0, g, "-1 < g < 1"));
   if (!(mu0 > 0.0 && mu0 <= 1.0)) throw std::invalid_argument(describe("mu0", 0, mu0, "0 < mu0 <= 1"));
   const KernelCoefficients c = kernel_coefficients(closure);
-  const LayerCore L = layer_core(c, tau, omega, g);
+  const LayerCore L = c.delta ? layer_core<true>(c, tau, omega, g, mu0)
+                              : layer_core<false>(c, tau, omega, g, mu0);
   LayerResponse out{};
   out.r_diffuse = L.r;
   out.t_diffuse = L.t;
   out.t_direct = exp_nonpositive(-L.tau / mu0);
-  const double km = L.k * mu0;
-  if (std::abs(1.0 - km) < kSingularBand) {
+  if (L.near) {
     beam_response_near_singularity(c, L, mu0, out.r_beam, out.t_beam);
   } else {
-    beam_response(c, L, mu0, out.t_direct, 1.0 / (1.0 - km * km), out.r_beam, out.t_beam);
+    beam_response(c, L, mu0, out.t_direct, L.inv_sing, out.r_beam, out.t_beam);
   }
   return out;
 }
@@ -379,7 +417,12 @@ void solve_columns_unchecked(const ColumnBatch& in, const SolverOptions& options
   work.reserve(in.n_layers, std::min(bs, std::max<std::size_t>(1, in.n_problems)));
   for (std::size_t p0 = 0; p0 < in.n_problems; p0 += bs) {
     const std::size_t nb = std::min(bs, in.n_problems - p0);
-    solve_block(c, in, p0, nb, out, carve(work.data(), in.n_layers, nb));
+    const BlockArrays arrays = carve(work.data(), in.n_layers, nb);
+    if (c.delta) {
+      solve_block<true>(c, in, p0, nb, out, arrays);
+    } else {
+      solve_block<false>(c, in, p0, nb, out, arrays);
+    }
   }
 }
 

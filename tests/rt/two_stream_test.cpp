@@ -363,10 +363,11 @@ TEST_CASE("delta scaling is the identity at g = 0 and at omega = 0", "[rt]") {
   // shared/checkvalues.md section 4.
   for (double tau : {0.1, 3.0}) {
     for (double mu0 : {0.3, 1.0}) {
+      // Identity up to round-off: the beam terms involve cancellation of O(1) products.
       const LayerResponse a = solve_layer(tau, 0.8, 0.0, mu0, Closure::delta_eddington);
       const LayerResponse b = solve_layer(tau, 0.8, 0.0, mu0, Closure::eddington);
-      CHECK(a.r_beam == b.r_beam);
-      CHECK(a.t_beam == b.t_beam);
+      CHECK(a.r_beam == Approx(b.r_beam).epsilon(1e-13));
+      CHECK(a.t_beam == Approx(b.t_beam).epsilon(1e-13));
       const LayerResponse c = solve_layer(tau, 0.0, 0.7, mu0, Closure::delta_eddington);
       CHECK(c.t_direct == Approx(std::exp(-tau / mu0)).epsilon(4 * kEps));
       CHECK(c.r_beam == 0.0);
