@@ -1,0 +1,94 @@
+#include "app/summary_table.hpp"
+
+#include <cstdio>
+#include <ostream>
+#include <string>
+
+#include "spectrum/grid.hpp"
+
+namespace solstrata::app {
+namespace {
+
+std::string fmt(const char* f, double a) {
+  char b[64];
+  std::snprintf(b, sizeof b, f, a);
+  return b;
+}
+
+}  // namespace
+
+void print_check_summary(std::ostream& os, const experiment::Experiment& e) {
+  os << e.source.string() << ": valid\n";
+  if (!e.title.empty()) os << "  title:       " << e.title << "\n";
+  if (e.given_optics_mode) {
+    os << "  mode:        given optics, " << e.given.bands.size() << " band(s) x "
+       << e.given.bands.front().layers.size() << " layers\n";
+  } else {
+    const spectrum::Grid g = spectrum::make_grid(e.segments, e.bands);
+    os << "  atmosphere:  " << e.profile_origin << ", " << e.profile.n_levels() << " levels\n";
+    os << "  aerosol:     "
+       << (e.aerosol.tau_ref > 0 ? fmt("optical depth %.3g", e.aerosol.tau_ref) + fmt(" at %g nm", e.aerosol.reference_nm) +
+                                       (e.aerosol_type.empty() ? "" : " (" + e.aerosol_type + ")")
+                                 : std::string("none"))
+       << "\n";
+    os << "  spectrum:    " << g.size() << fmt(" bins, %g", g.lower_nm()) << fmt("-%g nm, ", g.upper_nm())
+       << (e.solar_file.empty() ? "built-in approximate solar spectrum" : "solar spectrum " + e.solar_file.string()) << "\n";
+    os << "  bands:      ";
+    for (const auto& b : g.bands()) os << " " << b.name << fmt(" (%g", b.lower_nm) << fmt("-%g)", b.upper_nm);
+    os << "\n";
+  }
+  os << "  sun:         solar zenith " << fmt("%g deg", e.solar_zenith_deg) << "\n";
+  os << "  closure:     " << rt::to_string(e.closure) << "\n";
+  os << "  scenarios:   1\n";
+  os << "  output:      " << e.output.file.string() << (e.output.spectral ? " (with spectral fluxes)" : "") << "\n";
+}
+
+void print_run_summary(std::ostream& os, const experiment::Experiment& e, const experiment::RunResult& r) {
+  os << "solstrata run: " << e.source.string();
+  if (!e.title.empty()) os << " - " << e.title;
+  os << "\n" << fmt("solar zenith %.2f deg", r.solar_zenith_deg) << fmt(" (mu0 %.4f)", r.mu0)
+     << fmt(", Earth-Sun factor %.4f", r.earth_sun_factor) << ", closure " << r.closure << "\n\n";
+  char line[200];
+  std::snprintf(line, sizeof line, "%-12s %15s %9s %9s %9s %9s %8s %9s\n", "band", "range nm", "TOA down",
+                "sfc dir", "sfc diff", "sfc glob", "transm.", "absorbed");
+  os << line;
+  std::snprintf(line, sizeof line, "%-12s %15s %9s %9s %9s %9s %8s %9s\n", "", "", "W m-2", "W m-2", "W m-2",
+                "W m-2", "", "atm W m-2");
+  os << line;
+  const std::size_t n = r.n_levels, s = n - 1;
+  for (std::size_t b = 0; b <= r.n_bands; ++b) {
+    const bool bb = b == r.n_bands;
+    const auto at = [&](const std::vector<double>& bv, const std::vector<double>& v, std::size_t lev) {
+      return bb ? v[lev] : bv[b * n + lev];
+    };
+    const double top = at(r.band_direct_down, r.direct_down, 0) + at(r.band_diffuse_down, r.diffuse_down, 0);
+    const double dir = at(r.band_direct_down, r.direct_down, s), dif = at(r.band_diffuse_down, r.diffuse_down, s);
+    const double absorbed = at(r.band_net_down, r.net_down, 0) - at(r.band_net_down, r.net_down, s);
+    std::string range;
+    if (bb) {
+      range = r.bin_lower_nm.empty() ? "" : fmt("%g-", r.bin_lower_nm.front()) + fmt("%g", r.bin_upper_nm.back());
+    } else if (r.band_upper_nm[b] > 0) {
+      range = fmt("%g-", r.band_lower_nm[b]) + fmt("%g", r.band_upper_nm[b]);
+    }
+    std::snprintf(line, sizeof line, "%-12s %15s %9.2f %9.2f %9.2f %9.2f %8.4f %9.2f\n",
+                  (bb ? std::string("broadband") : r.band_names[b]).substr(0, 12).c_str(), range.c_str(), top, dir,
+                  dif, dir + dif, top > 0 ? (dir + dif) / top : 0.0, absorbed);
+    os << line;
+  }
+  os << "\nsurface: direct normal " << fmt("%.1f", r.direct_normal) << ", diffuse horizontal "
+     << fmt("%.1f", r.diffuse_horizontal) << ", global horizontal " << fmt("%.1f W m-2", r.global_horizontal) << "\n";
+  if (r.has_spectral_products) {
+    os << "         PAR " << fmt("%.1f W m-2", r.par_w_m2) << fmt(" = %.0f umol m-2 s-1", r.par_umol_m2_s)
+       << ", UV index " << fmt("%.1f", r.uv_index) << (r.solar_approximate ? " (indicative)" : "") << "\n";
+  }
+  os << "planetary albedo " << fmt("%.4f", r.planetary_albedo) << ", absorbed: atmosphere "
+     << fmt("%.1f", r.absorbed_atmosphere) << ", surface " << fmt("%.1f W m-2", r.absorbed_surface) << "\n";
+  if (r.solar_approximate) {
+    os << "note: computed with the built-in approximate solar spectrum (Planck at 5772 K scaled to\n"
+          "      1360.8 W m-2); band values are approximate and the UV index is indicative only.\n";
+  }
+  os << "caution: " << experiment::kSolarCaution << "\n";
+  if (r.has_spectral_products) os << "caution: " << experiment::kUvCaution << "\n";
+}
+
+}  // namespace solstrata::app

@@ -1,0 +1,18 @@
+// Terminal summaries of an experiment (check) and of a run's results.
+#pragma once
+
+#include <iosfwd>
+
+#include "experiment/experiment.hpp"
+#include "experiment/run.hpp"
+
+namespace solstrata::app {
+
+/// What a run of `e` would do: mode, atmosphere, spectral grid, bands, sun, output.
+void print_check_summary(std::ostream& os, const experiment::Experiment& e);
+
+/// The short table of a run: per band and broadband TOA down, surface direct, diffuse, global,
+/// transmittance and atmospheric absorption; surface products; notes and cautions.
+void print_run_summary(std::ostream& os, const experiment::Experiment& e, const experiment::RunResult& r);
+
+}  // namespace solstrata::app

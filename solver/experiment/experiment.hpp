@@ -1,0 +1,96 @@
+// The typed experiment: everything one run needs, resolved from the experiment file.
+#pragma once
+
+#include <filesystem>
+#include <map>
+#include <string>
+#include <vector>
+
+#include "atmos/profile.hpp"
+#include "optics/aerosol.hpp"
+#include "optics/column_optics.hpp"
+#include "rt/closure.hpp"
+#include "spectrum/grid.hpp"
+#include "sun/earth_sun.hpp"
+
+namespace solstrata::experiment {
+
+/// One layer of user-given optics (direct-optics mode).
+struct GivenLayer {
+  double tau = 0.0;    ///< dimensionless: optical depth, >= 0
+  double omega = 0.0;  ///< dimensionless: single-scattering albedo, [0, 1]
+  double g = 0.0;      ///< dimensionless: asymmetry parameter, (-1, 1)
+};
+
+/// One band of user-given optics: its own layers and TOA irradiance.
+struct GivenBand {
+  std::string name;                ///< label of the band
+  double lower_nm = 0.0;           ///< nm: lower edge (0 with upper_nm 0 when not stated)
+  double upper_nm = 0.0;           ///< nm: upper edge
+  double solar_w_m2 = 0.0;         ///< W m-2: TOA irradiance normal to the beam (before distance factor)
+  std::vector<GivenLayer> layers;  ///< top layer first
+};
+
+/// Direct-optics mode: the solver runs on exactly these layers, no gas/aerosol optics.
+struct GivenOptics {
+  std::vector<GivenBand> bands;       ///< one or more bands, all with the same number of layers
+  std::vector<double> pressure_hpa;   ///< hPa: level pressures (optional: empty = no heating rate)
+};
+
+/// Output choices.
+struct OutputConfig {
+  std::filesystem::path file;  ///< the HDF5 file to write
+  bool spectral = false;       ///< also write per-bin level fluxes
+  std::filesystem::path csv;   ///< optional flat CSV summary (empty = none)
+};
+
+/// A fully resolved experiment.
+struct Experiment {
+  std::string title;               ///< the user's title ("" when not given)
+  std::filesystem::path source;    ///< path of the experiment file as given
+  std::string text;                ///< the complete experiment text (provenance)
+
+  bool given_optics_mode = false;  ///< true: `given_optics` replaces atmosphere/aerosol/spectrum
+  GivenOptics given;               ///< the user's optics (given_optics_mode only)
+
+  atmos::Profile profile;          ///< the atmosphere (levels top to surface)
+  std::string profile_origin;      ///< where the profile came from (file path or "built-in ...")
+  optics::OpticsOptions optics;    ///< which components and how
+  optics::AerosolSpec aerosol;     ///< the aerosol (tau_ref 0 when there is none)
+  std::string aerosol_type;        ///< preset name used ("" when none)
+
+  double solar_zenith_deg = 0.0;   ///< degrees: solar zenith angle, [0, 90)
+  sun::DistanceSpec distance;      ///< Earth-Sun distance factor (day of year or given)
+  double irradiance_scale = 1.0;   ///< dimensionless: extra factor on the TOA irradiance, > 0
+
+  double albedo_direct = 0.0;      ///< dimensionless: surface albedo for the direct beam, [0, 1]
+  double albedo_diffuse = 0.0;     ///< dimensionless: surface albedo for diffuse light, [0, 1]
+  /// dimensionless: albedo for the bins of named reporting bands, overriding the above (both
+  /// direct and diffuse)
+  std::map<std::string, double> albedo_by_band;
+
+  std::vector<spectrum::GridSegment> segments;  ///< spectral bins
+  std::vector<spectrum::Band> bands;            ///< reporting bands
+  std::filesystem::path solar_file;             ///< user's solar spectrum CSV ("" = built-in)
+  std::string solar_column;                     ///< its column ("" = the only one)
+
+  rt::Closure closure = rt::Closure::delta_eddington;  ///< two-stream closure
+  OutputConfig output;                                 ///< where and what to write
+};
+
+/// Reads and validates an experiment file. Relative paths inside it (profile, solar spectrum)
+/// are taken relative to the file's directory; the output path relative to the working
+/// directory. Throws InputError (file, line, column, key, expected form) on any problem, before
+/// any work is done.
+Experiment load_experiment(const std::filesystem::path& path);
+
+/// As load_experiment, from text; `name` stands for the file in messages and `base_dir` resolves
+/// relative paths.
+Experiment parse_experiment(std::string text, const std::string& name,
+                            const std::filesystem::path& base_dir);
+
+/// Every top-level key of an experiment file, with a one-line description (for help texts and
+/// the key reference test).
+const std::vector<std::pair<std::string, std::string>>& top_level_keys();
+
+}  // namespace solstrata::experiment

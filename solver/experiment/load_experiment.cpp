@@ -1,0 +1,437 @@
+// Reading an experiment file into a typed Experiment. Every key, its unit, default and range is
+// documented in docs/experiment-keys.md; keep the two in step.
+#include <algorithm>
+#include <cmath>
+#include <fstream>
+#include <set>
+#include <sstream>
+
+#include "atmos/standard_atmosphere.hpp"
+#include "experiment/experiment.hpp"
+#include "experiment/yaml_reader.hpp"
+
+namespace solstrata::experiment {
+namespace {
+
+namespace fs = std::filesystem;
+
+const std::vector<std::string> kClosureNames = [] {
+  std::vector<std::string> v;
+  for (rt::Closure c : rt::kAllClosures) v.emplace_back(rt::to_string(c));
+  return v;
+}();
+
+const std::vector<std::string> kAerosolTypes = {
+    "continental_clean", "continental_average", "continental_polluted", "urban",
+    "desert",            "maritime_clean",      "maritime_polluted",    "smoke"};
+
+const std::vector<std::string> kShapes = {"exponential", "boundary_layer", "per_layer"};
+
+/// Name of the built-in standard profile generated on the fly.
+constexpr const char* kBuiltinProfile = "us_standard_1976";
+
+fs::path resolve(const fs::path& base, const std::string& p) {
+  const fs::path q(p);
+  return q.is_absolute() ? q : base / q;
+}
+
+/// Checks that `v` is strictly monotonic (increasing when `up`), pointing at the first offender.
+void require_monotonic(const Document& doc, const LocatedNumbers& v, bool up, const char* what) {
+  for (std::size_t i = 1; i < v.values.size(); ++i) {
+    const bool ok = up ? v.values[i] > v.values[i - 1] : v.values[i] < v.values[i - 1];
+    if (!ok) {
+      std::ostringstream m;
+      m << what << " must " << (up ? "increase" : "decrease") << " strictly from the top level to the surface; "
+        << format_number(v.values[i]) << " follows " << format_number(v.values[i - 1]);
+      throw doc.error(v.at(i), m.str());
+    }
+  }
+}
+
+/// Reads a `levels` mapping (experiment inline levels or a profile file's levels).
+atmos::Profile read_levels(Section& s) {
+  const Document doc = s.document();
+  atmos::Profile p;
+  const LocatedNumbers pr = s.number_list("pressure_hpa", Range::greater_than(0.0), 2, "hPa");
+  const LocatedNumbers te = s.number_list("temperature_k", Range::open(100.0, 400.0), 2, "K");
+  const LocatedNumbers al = s.number_list("altitude_km", Range::open(-1.0, 200.0), 2, "km");
+  LocatedNumbers oz, h2o;
+  if (s.has("ozone_ppmv")) oz = s.number_list("ozone_ppmv", Range::closed(0.0, 1000.0), 2, "ppmv");
+  if (s.has("h2o_ppmv")) h2o = s.number_list("h2o_ppmv", Range::closed(0.0, 1e5), 2, "ppmv");
+  s.check_no_unknown_keys();
+  const auto same_length = [&](const LocatedNumbers& v) {
+    if (!v.values.empty() && v.values.size() != pr.values.size()) {
+      throw doc.error(v.mark, v.key,
+                      "has " + std::to_string(v.values.size()) + " values but pressure_hpa has " +
+                          std::to_string(pr.values.size()) + "; every level list needs one value per level");
+    }
+  };
+  same_length(te);
+  same_length(al);
+  same_length(oz);
+  same_length(h2o);
+  require_monotonic(doc, pr, true, "pressure_hpa");
+  require_monotonic(doc, al, false, "altitude_km");
+  p.pressure_hpa = pr.values;
+  p.temperature_k = te.values;
+  p.altitude_km = al.values;
+  p.ozone_ppmv = oz.values;
+  p.h2o_ppmv = h2o.values;
+  return p;
+}
+
+/// Reads a profile file (the format written by the standard-atmosphere generator).
+atmos::Profile read_profile_file(const fs::path& path) {
+  const Document doc = Document::load_file(path);
+  Section root = doc.root();
+  atmos::Profile p;
+  const std::string name = root.optional_string("name", path.stem().string()).value;
+  const double lat = root.optional_number("latitude_deg", 45.0, Range::closed(-90, 90), "degrees").value;
+  const double co2 = root.optional_number("co2_ppmv", 400.0, Range::closed(0, 1e5), "ppmv").value;
+  Section lv = root.subsection("levels");
+  p = read_levels(lv);
+  root.check_no_unknown_keys();
+  p.name = name;
+  p.latitude_deg = lat;
+  p.co2_ppmv = co2;
+  if (const std::string m = p.validate(); !m.empty()) throw doc.error(lv.mark(), "levels", m);
+  return p;
+}
+
+void read_atmosphere(Section& s, Experiment& e, const fs::path& base) {
+  const Document doc = s.document();
+  const bool has_profile = s.has("profile"), has_levels = s.has("levels");
+  if (has_profile && has_levels) {
+    throw s.error("levels", "give either 'profile' (a file or '" + std::string(kBuiltinProfile) +
+                                "') or inline 'levels', not both");
+  }
+  if (has_levels) {
+    Section lv = s.subsection("levels");
+    e.profile = read_levels(lv);
+    e.profile.name = "inline levels";
+    e.profile_origin = "inline levels in " + e.source.string();
+    if (const std::string m = e.profile.validate(); !m.empty()) throw doc.error(lv.mark(), lv.path(), m);
+  } else {
+    const Located<std::string> prof = s.optional_string("profile", kBuiltinProfile);
+    if (prof.value == kBuiltinProfile) {
+      e.profile = atmos::make_us_standard_1976();
+      e.profile_origin = "built-in U.S. Standard Atmosphere 1976 (generated)";
+    } else {
+      const fs::path path = resolve(base, prof.value);
+      std::error_code ec;
+      if (!fs::is_regular_file(path, ec)) {
+        throw doc.error(prof, "profile file '" + path.string() +
+                                  "' does not exist; give a path relative to the experiment file, or '" +
+                                  kBuiltinProfile + "'");
+      }
+      e.profile = read_profile_file(path);
+      e.profile_origin = path.string();
+    }
+  }
+  const auto co2 = s.optional_number("co2_ppmv", e.profile.co2_ppmv, Range::closed(0, 1e5), "ppmv");
+  const auto lat = s.optional_number("latitude_deg", e.profile.latitude_deg, Range::closed(-90, 90), "degrees");
+  const auto ozone = s.optional_number("ozone_column_du", 0.0, Range::open_closed(0, 1000), "DU");
+  const auto psfc = s.optional_number("surface_pressure_hpa", 0.0, Range::open_closed(0, 1200), "hPa");
+  e.optics.rayleigh = s.optional_bool("rayleigh", true).value;
+  e.optics.ozone = s.optional_bool("ozone", true).value;
+  e.optics.ozone_temperature_dependence = s.optional_bool("ozone_temperature_dependence", false).value;
+  s.check_no_unknown_keys();
+  e.profile.co2_ppmv = co2.value;
+  e.profile.latitude_deg = lat.value;
+  if (ozone.given()) {
+    if (atmos::total_ozone_du(e.profile) <= 0.0) {
+      throw doc.error(ozone, "the profile has no ozone to rescale; give ozone_ppmv levels");
+    }
+    e.optics.total_ozone_du = ozone.value;
+  }
+  if (psfc.given()) {
+    // Scales the whole column mass: every level pressure by p_sfc / p_profile_surface.
+    const double f = psfc.value / e.profile.pressure_hpa.back();
+    for (double& p : e.profile.pressure_hpa) p *= f;
+  }
+}
+
+void read_aerosol(Section& s, Experiment& e) {
+  const Document doc = s.document();
+  optics::AerosolSpec& a = e.aerosol;
+  if (s.has("type")) {
+    const auto t = s.choice("type", kAerosolTypes);
+    const optics::AerosolPreset pre = optics::preset(*optics::parse_aerosol_type(t.value));
+    a.omega = pre.omega;
+    a.g = pre.g;
+    a.angstrom = pre.angstrom;
+    e.aerosol_type = t.value;
+  }
+  a.tau_ref = s.required_number("optical_depth", Range::closed(0.0, 50.0)).value;
+  a.reference_nm = s.optional_number("reference_wavelength_nm", 550.0, Range::open(200.0, 5000.0), "nm").value;
+  a.angstrom = s.optional_number("angstrom_exponent", a.angstrom, Range::closed(-1.0, 4.0)).value;
+  if (s.has("second_wavelength_nm") || s.has("second_optical_depth")) {
+    a.second_nm = s.required_number("second_wavelength_nm", Range::open(200.0, 5000.0), "nm").value;
+    a.tau_second = s.required_number("second_optical_depth", Range::greater_than(0.0)).value;
+    if (s.has("angstrom_exponent")) {
+      throw s.error("angstrom_exponent", "give either angstrom_exponent or the two-wavelength form "
+                                         "(second_wavelength_nm, second_optical_depth), not both");
+    }
+  }
+  a.omega = s.optional_number("single_scattering_albedo", a.omega, Range::closed(0.0, 1.0)).value;
+  a.g = s.optional_number("asymmetry_parameter", a.g, Range::open(-1.0, 1.0)).value;
+  if (auto t = s.optional_subsection("spectral_table")) {
+    const LocatedNumbers wl = t->number_list("wavelength_nm", Range::open(0.0, 1e6), 1, "nm");
+    require_monotonic(doc, wl, true, "wavelength_nm");
+    a.table_nm = wl.values;
+    for (const char* key : {"single_scattering_albedo", "asymmetry_parameter"}) {
+      if (!t->has(key)) continue;
+      const bool w = std::string(key) == "single_scattering_albedo";
+      const LocatedNumbers v = t->number_list(key, w ? Range::closed(0.0, 1.0) : Range::open(-1.0, 1.0), 1);
+      if (v.values.size() != wl.values.size()) {
+        throw doc.error(v.mark, v.key, "needs one value per wavelength_nm entry (" +
+                                           std::to_string(wl.values.size()) + "), got " +
+                                           std::to_string(v.values.size()));
+      }
+      (w ? a.omega_table : a.g_table) = v.values;
+    }
+    t->check_no_unknown_keys();
+  }
+  if (auto v = s.optional_subsection("vertical")) {
+    const auto shape = v->optional_choice("shape", "exponential", kShapes);
+    a.shape = *optics::parse_aerosol_shape(shape.value);
+    a.scale_height_km = v->optional_number("scale_height_km", a.scale_height_km, Range::open(0.0, 100.0), "km").value;
+    a.boundary_layer_top_km = v->optional_number("mixed_layer_top_km", a.boundary_layer_top_km, Range::open(0.0, 20.0), "km").value;
+    a.boundary_layer_fraction = v->optional_number("mixed_layer_fraction", a.boundary_layer_fraction, Range::closed(0.0, 1.0)).value;
+    if (a.shape == optics::AerosolShape::per_layer) {
+      const LocatedNumbers w = v->number_list("layer_weights", Range::at_least(0.0), 1);
+      if (w.values.size() != e.profile.n_layers()) {
+        throw doc.error(w.mark, w.key, "needs one weight per layer of the atmosphere (" +
+                                           std::to_string(e.profile.n_layers()) + "), got " +
+                                           std::to_string(w.values.size()));
+      }
+      a.layer_weights = w.values;
+    }
+    v->check_no_unknown_keys();
+  }
+  s.check_no_unknown_keys();
+  if (const std::string m = a.validate(); !m.empty()) throw doc.error(s.mark(), s.path(), m);
+  try {
+    (void)optics::layer_fractions(a, e.profile);
+  } catch (const std::exception& ex) {
+    throw doc.error(s.mark(), s.path(), ex.what());
+  }
+}
+
+void read_sun(Section& s, Experiment& e) {
+  e.solar_zenith_deg = s.required_number("solar_zenith_deg", Range::closed_open(0.0, 90.0), "degrees").value;
+  const auto day = s.optional_number("day_of_year", 0.0, Range::closed_open(1.0, 367.0));
+  const auto factor = s.optional_number("distance_factor", 0.0, Range::closed(0.9, 1.1));
+  if (day.given() && factor.given()) {
+    throw s.error("distance_factor", "give either day_of_year or distance_factor, not both");
+  }
+  e.distance.day_of_year = day.value;
+  e.distance.factor = factor.value;
+  e.irradiance_scale = s.optional_number("irradiance_scale", 1.0, Range::open_closed(0.0, 10.0)).value;
+  s.check_no_unknown_keys();
+}
+
+void read_surface(Section& s, Experiment& e) {
+  const auto albedo = s.optional_number("albedo", 0.2, Range::closed(0.0, 1.0));
+  e.albedo_direct = s.optional_number("albedo_direct", albedo.value, Range::closed(0.0, 1.0)).value;
+  e.albedo_diffuse = s.optional_number("albedo_diffuse", albedo.value, Range::closed(0.0, 1.0)).value;
+  if (auto by = s.optional_subsection("albedo_by_band")) {
+    for (const std::string& k : by->keys()) {
+      const bool known = std::any_of(e.bands.begin(), e.bands.end(),
+                                     [&](const spectrum::Band& b) { return b.name == k; });
+      if (!known || e.given_optics_mode) {
+        std::string names;
+        for (const auto& b : e.bands) names += (names.empty() ? "" : ", ") + b.name;
+        (void)by->has(k);
+        throw by->error(k, "'" + k + "' is not a reporting band" +
+                               (e.given_optics_mode ? " (given_optics has no spectral bands)"
+                                                    : " (bands: " + names + ")"));
+      }
+      e.albedo_by_band[k] = by->required_number(k, Range::closed(0.0, 1.0)).value;
+    }
+    by->check_no_unknown_keys();
+  }
+  s.check_no_unknown_keys();
+}
+
+void read_spectrum(Section& s, Experiment& e, const fs::path& base) {
+  const Document doc = s.document();
+  if (s.has("bins")) {
+    e.segments.clear();
+    for (Section& b : s.sequence("bins")) {
+      spectrum::GridSegment g;
+      g.from_nm = b.required_number("from_nm", Range::open(0.0, 1e6), "nm").value;
+      g.to_nm = b.required_number("to_nm", Range::open(0.0, 1e6), "nm").value;
+      g.step_nm = b.required_number("step_nm", Range::greater_than(0.0), "nm").value;
+      b.check_no_unknown_keys();
+      e.segments.push_back(g);
+    }
+    if (const std::string m = spectrum::validate(e.segments); !m.empty()) throw s.error("bins", m);
+  }
+  if (s.has("bands")) {
+    e.bands.clear();
+    for (Section& b : s.sequence("bands")) {
+      spectrum::Band band;
+      band.name = b.required_string("name").value;
+      band.lower_nm = b.required_number("from_nm", Range::open(0.0, 1e6), "nm").value;
+      band.upper_nm = b.required_number("to_nm", Range::open(0.0, 1e6), "nm").value;
+      b.check_no_unknown_keys();
+      e.bands.push_back(band);
+    }
+  }
+  if (auto sol = s.optional_subsection("solar_spectrum")) {
+    const auto file = sol->required_string("file");
+    e.solar_column = sol->optional_string("column", "").value;
+    sol->check_no_unknown_keys();
+    e.solar_file = resolve(base, file.value);
+    std::error_code ec;
+    if (!fs::is_regular_file(e.solar_file, ec)) {
+      throw doc.error(file, "solar spectrum file '" + e.solar_file.string() + "' does not exist");
+    }
+  }
+  s.check_no_unknown_keys();
+}
+
+std::vector<GivenLayer> read_given_layers(Section& s) {
+  std::vector<GivenLayer> layers;
+  for (Section& l : s.sequence("layers")) {
+    GivenLayer g;
+    g.tau = l.required_number("optical_depth", Range::closed(0.0, 1e4)).value;
+    g.omega = l.required_number("single_scattering_albedo", Range::closed(0.0, 1.0)).value;
+    g.g = l.optional_number("asymmetry_parameter", 0.0, Range::open(-1.0, 1.0)).value;
+    l.check_no_unknown_keys();
+    layers.push_back(g);
+  }
+  return layers;
+}
+
+void read_given_optics(Section& s, Experiment& e) {
+  const Document doc = s.document();
+  GivenOptics& g = e.given;
+  if (s.has("bands")) {
+    if (s.has("layers")) throw s.error("layers", "give either 'layers' (one band) or 'bands', not both");
+    for (Section& b : s.sequence("bands")) {
+      GivenBand band;
+      band.name = b.required_string("name").value;
+      const auto lo = b.optional_number("from_nm", 0.0, Range::open(0.0, 1e6), "nm");
+      const auto hi = b.optional_number("to_nm", 0.0, Range::open(0.0, 1e6), "nm");
+      if (lo.given() != hi.given()) throw b.error(lo.given() ? "to_nm" : "from_nm", "give both from_nm and to_nm, or neither");
+      if (lo.given() && !(hi.value > lo.value)) throw doc.error(hi, "to_nm must exceed from_nm (" + format_number(lo.value) + ")");
+      band.lower_nm = lo.value;
+      band.upper_nm = hi.value;
+      band.solar_w_m2 = b.required_number("solar_irradiance_w_m2", Range::closed(0.0, 1e4), "W m-2").value;
+      band.layers = read_given_layers(b);
+      b.check_no_unknown_keys();
+      if (!g.bands.empty() && band.layers.size() != g.bands.front().layers.size()) {
+        throw b.error("layers", "every band needs the same number of layers (" +
+                                    std::to_string(g.bands.front().layers.size()) + "), got " +
+                                    std::to_string(band.layers.size()));
+      }
+      g.bands.push_back(std::move(band));
+    }
+  } else {
+    GivenBand band;
+    band.name = "all";
+    band.solar_w_m2 = s.required_number("solar_irradiance_w_m2", Range::closed(0.0, 1e4), "W m-2").value;
+    band.layers = read_given_layers(s);
+    g.bands.push_back(std::move(band));
+  }
+  if (s.has("pressure_hpa")) {
+    const LocatedNumbers p = s.number_list("pressure_hpa", Range::at_least(0.0), 2, "hPa");
+    require_monotonic(doc, p, true, "pressure_hpa");
+    if (p.values.size() != g.bands.front().layers.size() + 1) {
+      throw doc.error(p.mark, p.key, "needs one pressure per level, i.e. layers + 1 = " +
+                                         std::to_string(g.bands.front().layers.size() + 1) +
+                                         " values, got " + std::to_string(p.values.size()));
+    }
+    g.pressure_hpa = p.values;
+  }
+  s.check_no_unknown_keys();
+}
+
+}  // namespace
+
+const std::vector<std::pair<std::string, std::string>>& top_level_keys() {
+  static const std::vector<std::pair<std::string, std::string>> keys = {
+      {"title", "a line describing the experiment"},
+      {"atmosphere", "levels or profile, ozone column, CO2, which gases scatter/absorb"},
+      {"aerosol", "optical depth, Angstrom law, single-scattering albedo, asymmetry, vertical shape"},
+      {"sun", "solar zenith angle, Earth-Sun distance, irradiance scaling"},
+      {"surface", "Lambertian albedo (direct, diffuse, per band)"},
+      {"spectrum", "wavelength bins, reporting bands, solar spectrum file"},
+      {"solver", "two-stream closure"},
+      {"output", "output file, spectral output, CSV summary"},
+      {"given_optics", "user-given layer optics instead of atmosphere/aerosol/spectrum"},
+  };
+  return keys;
+}
+
+Experiment parse_experiment(std::string text, const std::string& name, const fs::path& base_dir) {
+  const Document doc = Document::parse(std::move(text), name);
+  Section root = doc.root();
+  Experiment e;
+  e.source = name;
+  e.text = doc.text();
+  e.title = root.optional_string("title", "").value;
+  e.segments = spectrum::default_segments();
+  e.bands = spectrum::default_bands();
+
+  e.given_optics_mode = root.has("given_optics");
+  if (e.given_optics_mode) {
+    for (const char* k : {"atmosphere", "aerosol", "spectrum"}) {
+      if (root.has(k)) {
+        throw root.error(k, std::string("'") + k + "' cannot be combined with 'given_optics', which "
+                             "replaces the atmosphere, aerosol and spectrum with the given layer optics");
+      }
+    }
+    Section g = root.subsection("given_optics");
+    read_given_optics(g, e);
+  } else {
+    if (root.has("atmosphere")) {
+      Section a = root.subsection("atmosphere");
+      read_atmosphere(a, e, base_dir);
+    } else {
+      e.profile = atmos::make_us_standard_1976();
+      e.profile_origin = "built-in U.S. Standard Atmosphere 1976 (generated)";
+    }
+    if (auto a = root.optional_subsection("aerosol")) read_aerosol(*a, e);
+    else e.aerosol.tau_ref = 0.0;
+    if (auto sp = root.optional_subsection("spectrum")) read_spectrum(*sp, e, base_dir);
+    if (const std::string m = spectrum::validate(e.bands, e.segments.front().from_nm, e.segments.back().to_nm); !m.empty()) {
+      throw root.error("spectrum", m);
+    }
+  }
+  {
+    Section s = root.subsection("sun");
+    read_sun(s, e);
+  }
+  if (auto s = root.optional_subsection("surface")) read_surface(*s, e);
+  if (auto s = root.optional_subsection("solver")) {
+    e.closure = *rt::parse_closure(s->optional_choice("closure", "delta_eddington", kClosureNames).value);
+    s->check_no_unknown_keys();
+  }
+  {
+    fs::path stem = fs::path(name).stem();
+    e.output.file = stem.string() + ".h5";
+    if (auto o = root.optional_subsection("output")) {
+      e.output.file = o->optional_string("file", e.output.file.string()).value;
+      e.output.spectral = o->optional_bool("spectral", false).value;
+      e.output.csv = o->optional_string("csv", "").value;
+      o->check_no_unknown_keys();
+    }
+  }
+  root.check_no_unknown_keys();
+  return e;
+}
+
+Experiment load_experiment(const fs::path& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) {
+    throw InputError(path.string(), {}, "", "cannot open the experiment file (does it exist and is it readable?)");
+  }
+  std::stringstream ss;
+  ss << in.rdbuf();
+  return parse_experiment(ss.str(), path.string(), path.parent_path());
+}
+
+}  // namespace solstrata::experiment

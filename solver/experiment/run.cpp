@@ -1,0 +1,284 @@
+#include "experiment/run.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+#include <stdexcept>
+
+#include "optics/column_optics.hpp"
+#include "products/surface_products.hpp"
+#include "rt/two_stream.hpp"
+#include "spectrum/solar.hpp"
+
+namespace solstrata::experiment {
+namespace {
+
+/// The solver's problems: one per spectral point (atmosphere mode) or band (given optics).
+struct Problems {
+  std::size_t n = 0, nl = 0;
+  std::vector<double> tau, omega, g, mu0, solar, albedo_direct, albedo_diffuse;
+};
+
+/// Level fluxes of the problems, [level * n + problem].
+struct Fluxes {
+  std::vector<double> dir, dif, up;
+};
+
+Fluxes solve(const Problems& p, rt::Closure closure) {
+  Fluxes f;
+  const std::size_t nlev = p.nl + 1;
+  f.dir.assign(nlev * p.n, 0.0);
+  f.dif.assign(nlev * p.n, 0.0);
+  f.up.assign(nlev * p.n, 0.0);
+  rt::SolverOptions opt;
+  opt.closure = closure;
+  rt::Workspace work;
+  const rt::Status st = rt::solve_columns({p.n, p.nl, p.tau, p.omega, p.g, p.mu0, p.solar,
+                                           p.albedo_direct, p.albedo_diffuse},
+                                          opt, {f.dir, f.dif, f.up}, work);
+  if (!st.ok) throw std::runtime_error("two-stream solver: " + st.message);
+  return f;
+}
+
+/// Sums problem fluxes into groups (bands): group_of[problem] (or -1 to skip), weight per problem.
+void aggregate(const Fluxes& f, std::size_t n, std::size_t nlev, const std::vector<std::vector<std::size_t>>& groups,
+               std::vector<double>& dir, std::vector<double>& dif, std::vector<double>& up) {
+  dir.assign(groups.size() * nlev, 0.0);
+  dif.assign(groups.size() * nlev, 0.0);
+  up.assign(groups.size() * nlev, 0.0);
+  for (std::size_t b = 0; b < groups.size(); ++b) {
+    for (std::size_t p : groups[b]) {
+      for (std::size_t lev = 0; lev < nlev; ++lev) {
+        dir[b * nlev + lev] += f.dir[lev * n + p];
+        dif[b * nlev + lev] += f.dif[lev * n + p];
+        up[b * nlev + lev] += f.up[lev * n + p];
+      }
+    }
+  }
+}
+
+double safe_ratio(double a, double b) { return b > 0.0 ? a / b : 0.0; }
+
+/// Fills the derived products of a result whose level fluxes are set.
+void derive(RunResult& r) {
+  const std::size_t nlev = r.n_levels, nl = r.n_layers;
+  const auto net = [&](const std::vector<double>& d, const std::vector<double>& f,
+                       const std::vector<double>& u, std::vector<double>& out) {
+    out.resize(d.size());
+    for (std::size_t i = 0; i < d.size(); ++i) out[i] = d[i] + f[i] - u[i];
+  };
+  net(r.direct_down, r.diffuse_down, r.diffuse_up, r.net_down);
+  net(r.band_direct_down, r.band_diffuse_down, r.band_diffuse_up, r.band_net_down);
+  r.absorbed.resize(nl);
+  for (std::size_t l = 0; l < nl; ++l) r.absorbed[l] = r.net_down[l] - r.net_down[l + 1];
+  r.band_absorbed.resize(r.n_bands * nl);
+  for (std::size_t b = 0; b < r.n_bands; ++b)
+    for (std::size_t l = 0; l < nl; ++l)
+      r.band_absorbed[b * nl + l] = r.band_net_down[b * nlev + l] - r.band_net_down[b * nlev + l + 1];
+  r.heating_rate.clear();
+  if (r.level_pressure_hpa.size() == nlev) {
+    r.heating_rate.resize(nl);
+    for (std::size_t l = 0; l < nl; ++l) {
+      const double dp = r.level_pressure_hpa[l + 1] - r.level_pressure_hpa[l];
+      r.heating_rate[l] = dp > 0.0 ? products::heating_rate_k_per_day(r.absorbed[l], dp) : 0.0;
+    }
+  }
+  const std::size_t s = nlev - 1;  // surface level
+  r.toa_down = r.direct_down[0] + r.diffuse_down[0];
+  r.toa_up = r.diffuse_up[0];
+  r.transmittance_direct = safe_ratio(r.direct_down[s], r.toa_down);
+  r.transmittance_diffuse = safe_ratio(r.diffuse_down[s], r.toa_down);
+  r.transmittance_total = safe_ratio(r.direct_down[s] + r.diffuse_down[s], r.toa_down);
+  r.planetary_albedo = safe_ratio(r.toa_up, r.toa_down);
+  r.surface_reflectance = safe_ratio(r.diffuse_up[s], r.direct_down[s] + r.diffuse_down[s]);
+  r.absorbed_surface = r.net_down[s];
+  r.absorbed_atmosphere = r.net_down[0] - r.net_down[s];
+  r.band_transmittance_direct.resize(r.n_bands);
+  r.band_transmittance_diffuse.resize(r.n_bands);
+  r.band_transmittance_total.resize(r.n_bands);
+  r.band_planetary_albedo.resize(r.n_bands);
+  for (std::size_t b = 0; b < r.n_bands; ++b) {
+    const double top = r.band_direct_down[b * nlev] + r.band_diffuse_down[b * nlev];
+    r.band_transmittance_direct[b] = safe_ratio(r.band_direct_down[b * nlev + s], top);
+    r.band_transmittance_diffuse[b] = safe_ratio(r.band_diffuse_down[b * nlev + s], top);
+    r.band_transmittance_total[b] =
+        safe_ratio(r.band_direct_down[b * nlev + s] + r.band_diffuse_down[b * nlev + s], top);
+    r.band_planetary_albedo[b] = safe_ratio(r.band_diffuse_up[b * nlev], top);
+  }
+  const products::SurfaceIrradiance si =
+      products::surface_irradiance(r.direct_down[s], r.diffuse_down[s], r.mu0);
+  r.direct_normal = si.direct_normal;
+  r.diffuse_horizontal = si.diffuse_horizontal;
+  r.global_horizontal = si.global_horizontal;
+}
+
+RunResult run_given(const Experiment& e, double mu0, double factor) {
+  const GivenOptics& g = e.given;
+  Problems p;
+  p.n = g.bands.size();
+  p.nl = g.bands.front().layers.size();
+  p.tau.resize(p.nl * p.n);
+  p.omega.resize(p.nl * p.n);
+  p.g.resize(p.nl * p.n);
+  for (std::size_t b = 0; b < p.n; ++b) {
+    for (std::size_t l = 0; l < p.nl; ++l) {
+      const GivenLayer& L = g.bands[b].layers[l];
+      p.tau[l * p.n + b] = L.tau;
+      p.omega[l * p.n + b] = L.omega;
+      p.g[l * p.n + b] = L.g;
+    }
+    p.mu0.push_back(mu0);
+    p.solar.push_back(g.bands[b].solar_w_m2 * factor);
+    p.albedo_direct.push_back(e.albedo_direct);
+    p.albedo_diffuse.push_back(e.albedo_diffuse);
+  }
+  const Fluxes f = solve(p, e.closure);
+  RunResult r;
+  r.n_levels = p.nl + 1;
+  r.n_layers = p.nl;
+  r.n_bands = p.n;
+  r.level_pressure_hpa = g.pressure_hpa;
+  std::vector<std::vector<std::size_t>> groups(p.n);
+  for (std::size_t b = 0; b < p.n; ++b) {
+    groups[b] = {b};
+    r.band_names.push_back(g.bands[b].name);
+    r.band_lower_nm.push_back(g.bands[b].lower_nm);
+    r.band_upper_nm.push_back(g.bands[b].upper_nm);
+    r.toa_normal_w_m2 += p.solar[b];
+  }
+  aggregate(f, p.n, r.n_levels, groups, r.band_direct_down, r.band_diffuse_down, r.band_diffuse_up);
+  std::vector<std::vector<std::size_t>> all(1);
+  for (std::size_t b = 0; b < p.n; ++b) all[0].push_back(b);
+  aggregate(f, p.n, r.n_levels, all, r.direct_down, r.diffuse_down, r.diffuse_up);
+  r.solar_description = "given in the experiment (given_optics)";
+  return r;
+}
+
+RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
+  const spectrum::Grid grid = spectrum::make_grid(e.segments, e.bands);
+  const spectrum::SolarSource solar =
+      e.solar_file.empty() ? spectrum::builtin_solar(grid)
+                           : spectrum::tabulated_solar(spectrum::read_spectrum_csv(e.solar_file.string(), e.solar_column), grid);
+  const optics::ColumnOptics co = optics::build_column_optics(e.profile, grid, e.aerosol, e.optics);
+
+  Problems p;
+  p.n = co.n_points;
+  p.nl = co.n_layers;
+  p.tau = co.tau;
+  p.omega = co.omega;
+  p.g = co.g;
+  // Surface albedo per bin: the default, overridden inside named bands.
+  std::vector<double> alb_dir(grid.size(), e.albedo_direct), alb_dif(grid.size(), e.albedo_diffuse);
+  for (std::size_t b = 0; b < grid.bands().size(); ++b) {
+    const auto it = e.albedo_by_band.find(grid.bands()[b].name);
+    if (it == e.albedo_by_band.end()) continue;
+    const spectrum::BinRange br = grid.band_bins(b);
+    for (std::size_t i = br.first; i < br.last; ++i) alb_dir[i] = alb_dif[i] = it->second;
+  }
+  for (std::size_t q = 0; q < p.n; ++q) {
+    const std::size_t bin = co.point_bin[q];
+    p.mu0.push_back(mu0);
+    p.solar.push_back(solar.bin_irradiance[bin] * co.point_weight[q] * factor);
+    p.albedo_direct.push_back(alb_dir[bin]);
+    p.albedo_diffuse.push_back(alb_dif[bin]);
+  }
+  const Fluxes f = solve(p, e.closure);
+
+  RunResult r;
+  r.n_levels = p.nl + 1;
+  r.n_layers = p.nl;
+  r.n_bands = grid.bands().size();
+  r.n_bins = grid.size();
+  r.level_pressure_hpa = e.profile.pressure_hpa;
+  r.level_altitude_km = e.profile.altitude_km;
+  r.solar_approximate = solar.approximate;
+  r.solar_description = solar.description;
+  for (const spectrum::Bin& b : grid.bins()) {
+    r.bin_lower_nm.push_back(b.lower_nm);
+    r.bin_upper_nm.push_back(b.upper_nm);
+    r.bin_center_nm.push_back(b.center_nm);
+  }
+  // Points of each bin, and bins of each band.
+  std::vector<std::vector<std::size_t>> bin_points(grid.size());
+  for (std::size_t q = 0; q < p.n; ++q) bin_points[co.point_bin[q]].push_back(q);
+  std::vector<std::vector<std::size_t>> band_points(r.n_bands), all(1);
+  for (std::size_t b = 0; b < r.n_bands; ++b) {
+    const spectrum::Band& band = grid.bands()[b];
+    r.band_names.push_back(band.name);
+    r.band_lower_nm.push_back(band.lower_nm);
+    r.band_upper_nm.push_back(band.upper_nm);
+    const spectrum::BinRange br = grid.band_bins(b);
+    for (std::size_t i = br.first; i < br.last; ++i)
+      band_points[b].insert(band_points[b].end(), bin_points[i].begin(), bin_points[i].end());
+  }
+  for (std::size_t q = 0; q < p.n; ++q) all[0].push_back(q);
+  aggregate(f, p.n, r.n_levels, band_points, r.band_direct_down, r.band_diffuse_down, r.band_diffuse_up);
+  aggregate(f, p.n, r.n_levels, all, r.direct_down, r.diffuse_down, r.diffuse_up);
+  std::vector<double> bdir, bdif, bup;
+  aggregate(f, p.n, r.n_levels, bin_points, bdir, bdif, bup);
+  r.bin_toa_normal.assign(grid.size(), 0.0);
+  for (std::size_t q = 0; q < p.n; ++q) {
+    r.bin_toa_normal[co.point_bin[q]] += p.solar[q];
+    r.toa_normal_w_m2 += p.solar[q];
+  }
+
+  // Irradiance-weighted band means of the column optical depth per component.
+  const auto band_mean = [&](const std::vector<double>& col, std::vector<double>& out) {
+    out.assign(r.n_bands, 0.0);
+    for (std::size_t b = 0; b < r.n_bands; ++b) {
+      double w = 0.0, s = 0.0;
+      for (std::size_t q : band_points[b]) {
+        w += p.solar[q];
+        s += p.solar[q] * col[q];
+      }
+      out[b] = w > 0.0 ? s / w : 0.0;
+    }
+  };
+  band_mean(co.column_tau_rayleigh, r.band_tau_rayleigh);
+  band_mean(co.column_tau_ozone, r.band_tau_ozone);
+  band_mean(co.column_tau_aerosol, r.band_tau_aerosol);
+
+  // Spectral products at the surface: PAR (400-700 nm) and the UV index. A bin straddling a
+  // PAR edge contributes the overlapping share of its flux (flat within the bin).
+  const std::size_t s = r.n_levels - 1;
+  r.has_spectral_products = true;
+  for (std::size_t i = 0; i < grid.size(); ++i) {
+    const spectrum::Bin& b = grid.bins()[i];
+    const double global = bdir[i * r.n_levels + s] + bdif[i * r.n_levels + s];
+    const double lo = std::max(b.lower_nm, 400.0), hi = std::min(b.upper_nm, 700.0);
+    if (hi > lo) {
+      const double share = global * (hi - lo) / b.width_nm();
+      r.par_w_m2 += share;
+      r.par_umol_m2_s += products::photon_flux_umol(share, lo, hi);
+    }
+    r.uv_index += products::kUvIndexPerWattPerM2 * global * products::erythema_action_mean(b.lower_nm, b.upper_nm);
+  }
+  if (e.output.spectral) {
+    r.bin_direct_down = std::move(bdir);
+    r.bin_diffuse_down = std::move(bdif);
+    r.bin_diffuse_up = std::move(bup);
+  }
+  return r;
+}
+
+}  // namespace
+
+RunResult run_experiment(const Experiment& e) {
+  const double mu0 = std::cos(e.solar_zenith_deg * std::numbers::pi / 180.0);
+  const double distance = e.distance.resolve();
+  const double factor = distance * e.irradiance_scale;
+  RunResult r;
+  try {
+    r = e.given_optics_mode ? run_given(e, mu0, factor) : run_atmosphere(e, mu0, factor);
+  } catch (const std::invalid_argument& ex) {
+    throw std::runtime_error(ex.what());
+  }
+  r.solar_zenith_deg = e.solar_zenith_deg;
+  r.mu0 = mu0;
+  r.earth_sun_factor = distance;
+  r.closure = std::string(rt::to_string(e.closure));
+  derive(r);
+  return r;
+}
+
+}  // namespace solstrata::experiment

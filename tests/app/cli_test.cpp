@@ -1,0 +1,168 @@
+// The command line as users meet it: exit codes, messages that point at the file, line and key,
+// and no output file left behind after a failure.
+#include <catch2/catch.hpp>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+#include <string>
+#include <sys/wait.h>
+#include <unistd.h>
+
+namespace fs = std::filesystem;
+
+namespace {
+
+fs::path workdir() {
+  static const fs::path d = [] {
+    const fs::path p = fs::temp_directory_path() / ("solstrata_cli_" + std::to_string(::getpid()));
+    fs::create_directories(p);
+    return p;
+  }();
+  return d;
+}
+
+struct Outcome {
+  int code;
+  std::string out, err;
+};
+
+std::string slurp(const fs::path& p) {
+  std::ifstream in(p);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  return ss.str();
+}
+
+Outcome run(const std::string& args) {
+  const fs::path o = workdir() / "stdout.txt", e = workdir() / "stderr.txt";
+  const std::string cmd = "cd '" + workdir().string() + "' && '" + SOLSTRATA_BINARY + "' " + args + " > '" +
+                          o.string() + "' 2> '" + e.string() + "'";
+  const int status = std::system(cmd.c_str());
+  return {WIFEXITED(status) ? WEXITSTATUS(status) : -1, slurp(o), slurp(e)};
+}
+
+/// Files in the work directory other than inputs and captured streams.
+std::vector<std::string> leftovers() {
+  std::vector<std::string> names;
+  for (const auto& f : fs::directory_iterator(workdir())) {
+    const std::string n = f.path().filename().string();
+    if (n.ends_with(".yaml") || n == "stdout.txt" || n == "stderr.txt" || n == "spectrum.csv") continue;
+    names.push_back(n);
+  }
+  return names;
+}
+
+const char* kGood = R"(atmosphere:
+  ozone_column_du: 300
+aerosol:
+  type: continental_clean
+  optical_depth: 0.1
+sun:
+  solar_zenith_deg: 30
+surface:
+  albedo: 0.2
+)";
+
+}  // namespace
+
+TEST_CASE("every command has --help and the tool has --version", "[app]") {
+  for (const char* c : {"--help", "run --help", "check --help", "demo --help"}) {
+    const Outcome o = run(c);
+    INFO(c << ": " << o.err);
+    CHECK(o.code == 0);
+    CHECK(o.out.find("usage") != std::string::npos);
+  }
+  const Outcome v = run("--version");
+  CHECK(v.code == 0);
+  CHECK(v.out.find("solstrata ") == 0);
+  CHECK(run("frobnicate").code == 2);
+  CHECK(run("run").code == 2);
+  CHECK(run("run a.yaml --bogus").code == 2);
+}
+
+TEST_CASE("a good experiment runs, prints the table and writes its files", "[app]") {
+  std::ofstream(workdir() / "good.yaml") << kGood;
+  const Outcome chk = run("check good.yaml");
+  CHECK(chk.code == 0);
+  CHECK(chk.out.find("valid") != std::string::npos);
+  const Outcome o = run("run good.yaml -o good.h5 --csv good.csv");
+  INFO(o.err);
+  REQUIRE(o.code == 0);
+  CHECK(o.out.find("broadband") != std::string::npos);
+  CHECK(o.out.find("UV index") != std::string::npos);
+  CHECK(o.out.find("not medical advice") != std::string::npos);
+  CHECK(o.out.find("approximate solar spectrum") != std::string::npos);
+  CHECK(fs::exists(workdir() / "good.h5"));
+  const std::string csv = slurp(workdir() / "good.csv");
+  CHECK(csv.find("broadband") != std::string::npos);
+  fs::remove(workdir() / "good.h5");
+  fs::remove(workdir() / "good.csv");
+  CHECK(run("run good.yaml -o good.h5 --quiet").out.empty());
+  fs::remove(workdir() / "good.h5");
+}
+
+TEST_CASE("bad experiment files are refused with a pointed message, exit code 2 and no output", "[app]") {
+  struct Bad {
+    const char* name;
+    std::string yaml;
+    const char* expect;  // a fragment the message must contain
+    int line;            // the line the message must point at (0: no line check)
+  };
+  const std::string sun = "sun:\n  solar_zenith_deg: 30\n";
+  const std::vector<Bad> cases = {
+      {"syntax", "sun: {solar_zenith_deg: 30\n", "error", 0},
+      {"unknown_top", "atmosphre:\n  co2_ppmv: 400\n" + sun, "did you mean 'atmosphere'", 1},
+      {"unknown_sun_key", "sun:\n  solar_zenith: 30\n", "did you mean 'solar_zenith_deg'", 2},
+      {"missing_sun", "surface:\n  albedo: 0.2\n", "sun", 0},
+      {"missing_zenith", "sun:\n  day_of_year: 10\n", "solar_zenith_deg", 0},
+      {"zenith_90", "sun:\n  solar_zenith_deg: 90\n", "< 90", 2},
+      {"zenith_text", "sun:\n  solar_zenith_deg: thirty\n", "number", 2},
+      {"ssa_high", sun + "aerosol:\n  optical_depth: 0.1\n  single_scattering_albedo: 1.2\n", "0 <= ", 5},
+      {"g_one", sun + "aerosol:\n  optical_depth: 0.1\n  asymmetry_parameter: 1.0\n", "< 1", 5},
+      {"tau_negative", sun + "aerosol:\n  optical_depth: -0.1\n", "0 <= ", 4},
+      {"tau_missing", sun + "aerosol:\n  angstrom_exponent: 1.0\n", "optical_depth", 0},
+      {"aerosol_type", sun + "aerosol:\n  type: continental_avg\n  optical_depth: 0.1\n", "did you mean 'continental_average'", 4},
+      {"albedo_high", sun + "surface:\n  albedo: 1.5\n", "<= 1", 4},
+      {"closure", sun + "solver:\n  closure: delta-eddington\n", "did you mean 'delta_eddington'", 4},
+      {"profile_missing", sun + "atmosphere:\n  profile: nowhere.yaml\n", "does not exist", 4},
+      {"levels_order", sun + "atmosphere:\n  levels:\n    pressure_hpa: [1, 500, 300]\n    temperature_k: [220, 250, 280]\n    altitude_km: [40, 5, 9]\n", "increase", 5},
+      {"levels_negative", sun + "atmosphere:\n  levels:\n    pressure_hpa: [-1, 500, 1000]\n    temperature_k: [220, 250, 280]\n    altitude_km: [40, 5, 0]\n", "> 0", 5},
+      {"levels_length", sun + "atmosphere:\n  levels:\n    pressure_hpa: [1, 500, 1000]\n    temperature_k: [220, 280]\n    altitude_km: [40, 5, 0]\n", "one value per level", 6},
+      {"levels_temperature", sun + "atmosphere:\n  levels:\n    pressure_hpa: [1, 500, 1000]\n    temperature_k: [220, 500, 280]\n    altitude_km: [40, 5, 0]\n", "< 400", 6},
+      {"profile_and_levels", sun + "atmosphere:\n  profile: us_standard_1976\n  levels:\n    pressure_hpa: [1, 1000]\n    temperature_k: [220, 280]\n    altitude_km: [40, 0]\n", "not both", 0},
+      {"band_outside", sun + "spectrum:\n  bands:\n    - {name: far_uv, from_nm: 100, to_nm: 200}\n", "far_uv", 0},
+      {"bins_gap", sun + "spectrum:\n  bins:\n    - {from_nm: 300, to_nm: 400, step_nm: 5}\n    - {from_nm: 410, to_nm: 500, step_nm: 10}\n", "bins", 0},
+      {"solar_file_missing", sun + "spectrum:\n  solar_spectrum:\n    file: nowhere.csv\n", "does not exist", 5},
+      {"given_with_atmosphere", sun + "atmosphere:\n  co2_ppmv: 400\ngiven_optics:\n  solar_irradiance_w_m2: 1000\n  layers:\n    - {optical_depth: 1, single_scattering_albedo: 0.9}\n", "cannot be combined", 0},
+      {"given_omega", sun + "given_optics:\n  solar_irradiance_w_m2: 1000\n  layers:\n    - {optical_depth: 1, single_scattering_albedo: 1.5}\n", "<= 1", 6},
+      {"given_pressures", sun + "given_optics:\n  solar_irradiance_w_m2: 1000\n  pressure_hpa: [1, 500, 1000]\n  layers:\n    - {optical_depth: 1, single_scattering_albedo: 0.5}\n", "one pressure per level", 5},
+      {"day_of_year", "sun:\n  solar_zenith_deg: 30\n  day_of_year: 400\n", "367", 3},
+      {"ambiguous_bool", sun + "output:\n  spectral: yes\n", "true", 4},
+      {"albedo_band", sun + "surface:\n  albedo_by_band:\n    VIS: 0.1\n", "not a reporting band", 5},
+      {"angstrom_twice", sun + "aerosol:\n  optical_depth: 0.2\n  angstrom_exponent: 1.2\n  second_wavelength_nm: 870\n  second_optical_depth: 0.1\n", "not both", 0},
+      {"ozone_zero", sun + "atmosphere:\n  ozone_column_du: 0\n", "0 <", 4},
+      {"empty_file", "", "", 0},
+      {"top_is_list", "- sun\n- surface\n", "mapping", 0},
+      {"shape", sun + "aerosol:\n  optical_depth: 0.1\n  vertical:\n    shape: gaussian\n", "exponential", 6},
+      {"layer_weights", sun + "aerosol:\n  optical_depth: 0.1\n  vertical:\n    shape: per_layer\n    layer_weights: [1, 2]\n", "one weight per layer", 7},
+  };
+  REQUIRE(cases.size() >= 25);
+  for (const Bad& b : cases) {
+    const std::string file = std::string("bad_") + b.name + ".yaml";
+    std::ofstream(workdir() / file) << b.yaml;
+    const Outcome o = run("run " + file + " -o out.h5");
+    INFO(b.name << ":\n" << o.err);
+    CHECK(o.code == 2);
+    CHECK(o.err.find(file) != std::string::npos);
+    CHECK(o.err.find(b.expect) != std::string::npos);
+    if (b.line > 0) CHECK(o.err.find(file + ":" + std::to_string(b.line) + ":") != std::string::npos);
+    CHECK(leftovers().empty());
+    CHECK(run("check " + file).code == 2);
+  }
+  // A missing experiment file.
+  const Outcome o = run("run missing.yaml -o out.h5");
+  CHECK(o.code == 2);
+  CHECK(o.err.find("missing.yaml") != std::string::npos);
+  CHECK(leftovers().empty());
+}

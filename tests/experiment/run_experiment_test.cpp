@@ -1,0 +1,168 @@
+#include "experiment/run.hpp"
+
+#include <catch2/catch.hpp>
+#include <cmath>
+#include <cstdlib>
+#include <filesystem>
+#include <numeric>
+
+#include "experiment/experiment.hpp"
+#include "io/hdf5_reader.hpp"
+#include "io/result_file.hpp"
+
+using namespace solstrata;
+namespace fs = std::filesystem;
+
+namespace {
+
+fs::path demo_path() { return fs::path(SOLSTRATA_SOURCE_DIR) / "config" / "demo.yaml"; }
+
+fs::path scratch(const std::string& name) {
+  const fs::path d = fs::temp_directory_path() / ("solstrata_test_" + std::to_string(::getpid()));
+  fs::create_directories(d);
+  return d / name;
+}
+
+double sum_over_bands(const std::vector<double>& band_level, std::size_t n_bands, std::size_t n_levels,
+                      std::size_t level) {
+  double s = 0;
+  for (std::size_t b = 0; b < n_bands; ++b) s += band_level[b * n_levels + level];
+  return s;
+}
+
+}  // namespace
+
+TEST_CASE("the demo experiment runs and its budget closes", "[experiment]") {
+  const experiment::Experiment e = experiment::load_experiment(demo_path());
+  const experiment::RunResult r = experiment::run_experiment(e);
+  REQUIRE(r.n_levels == e.profile.n_levels());
+  REQUIRE(r.n_bands >= 4);
+  const std::size_t n = r.n_levels;
+  for (std::size_t lev = 0; lev < n; ++lev) {
+    // Broadband = sum of bands (the default bands tile the whole grid) - exact bookkeeping.
+    CHECK(r.direct_down[lev] == Approx(sum_over_bands(r.band_direct_down, r.n_bands, n, lev)).epsilon(1e-12));
+    CHECK(r.diffuse_down[lev] == Approx(sum_over_bands(r.band_diffuse_down, r.n_bands, n, lev)).epsilon(1e-12));
+    CHECK(r.diffuse_up[lev] == Approx(sum_over_bands(r.band_diffuse_up, r.n_bands, n, lev)).epsilon(1e-12));
+    // Net = down - up.
+    CHECK(r.net_down[lev] == Approx(r.direct_down[lev] + r.diffuse_down[lev] - r.diffuse_up[lev]).epsilon(1e-14));
+  }
+  // Energy balance: TOA net = absorbed in the atmosphere + absorbed at the surface (exact
+  // conservation of the adding method), to 1e-9 relative.
+  const double absorbed_layers = std::accumulate(r.absorbed.begin(), r.absorbed.end(), 0.0);
+  CHECK(r.net_down[0] == Approx(absorbed_layers + r.absorbed_surface).epsilon(1e-9));
+  CHECK(r.net_down[0] == Approx(r.absorbed_atmosphere + r.absorbed_surface).epsilon(1e-9));
+  // Global = direct + diffuse, and GHI = DNI mu0 + DHI.
+  CHECK(r.global_horizontal == Approx(r.direct_down.back() + r.diffuse_down.back()).epsilon(1e-14));
+  CHECK(r.global_horizontal == Approx(r.direct_normal * r.mu0 + r.diffuse_horizontal).epsilon(1e-12));
+  // TOA downward flux = mu0 x (distance factor x solar constant over the grid): the built-in
+  // spectrum integrates to 1360.8 W m-2 over all wavelengths (Kopp & Lean 2011); 250-4000 nm
+  // holds about 98-99 % of it (common practice).
+  CHECK(r.toa_down == Approx(r.mu0 * r.toa_normal_w_m2).epsilon(1e-12));
+  CHECK(r.toa_normal_w_m2 / r.earth_sun_factor > 0.97 * 1360.8);
+  CHECK(r.toa_normal_w_m2 / r.earth_sun_factor < 1360.8);
+  // Physically expected ranges for a clear, lightly hazy sky at 32.5 degrees (common practice:
+  // clear-sky global horizontal irradiance near 800-950 W m-2 at this sun height; PAR photon flux
+  // about 1600-2000 umol m-2 s-1; summer mid-latitude UV index 6-9).
+  CHECK(r.global_horizontal > 780);
+  CHECK(r.global_horizontal < 960);
+  CHECK(r.diffuse_horizontal / r.global_horizontal > 0.06);
+  CHECK(r.diffuse_horizontal / r.global_horizontal < 0.25);
+  CHECK(r.par_umol_m2_s > 1500);
+  CHECK(r.par_umol_m2_s < 2100);
+  CHECK(r.par_umol_m2_s / r.par_w_m2 == Approx(4.57).margin(0.1));  // McCree 1972 daylight figure (from memory)
+  CHECK(r.uv_index > 5);
+  CHECK(r.uv_index < 10);
+  for (double h : r.heating_rate) {
+    CHECK(std::isfinite(h));
+    CHECK(h > -1e-9);
+    CHECK(h < 50);
+  }
+}
+
+TEST_CASE("the result file is a self-describing netCDF-4 dataset", "[experiment][io]") {
+  experiment::Experiment e = experiment::load_experiment(demo_path());
+  const experiment::RunResult r = experiment::run_experiment(e);
+  const fs::path out = scratch("demo_roundtrip.h5");
+  io::write_result_file(out, e, r);
+  REQUIRE(fs::exists(out));
+  const io::StoredVariable dn = io::read_variable(out, "flux_diffuse_down");
+  CHECK(dn.dimensions == std::vector<std::string>{"level"});
+  CHECK(io::text_attribute(dn.attributes, "units") == "W m-2");
+  CHECK(!io::text_attribute(dn.attributes, "long_name").empty());
+  CHECK(dn.values == r.diffuse_down);
+  const io::StoredVariable bands = io::read_variable(out, "band_flux_direct_down");
+  CHECK(bands.dimensions == std::vector<std::string>{"band", "level"});
+  CHECK(bands.shape == std::vector<std::size_t>{r.n_bands, r.n_levels});
+  const io::StoredVariable hr = io::read_variable(out, "heating_rate");
+  CHECK(io::text_attribute(hr.attributes, "units") == "K day-1");
+  const io::StoredVariable uv = io::read_variable(out, "uv_index");
+  CHECK(io::text_attribute(uv.attributes, "caution").find("not medical advice") != std::string::npos);
+  CHECK(io::text_attribute(uv.attributes, "quality").find("indicative") != std::string::npos);
+  const io::StoredVariable spec = io::read_variable(out, "spectral_flux_direct_down");
+  CHECK(spec.dimensions == std::vector<std::string>{"wavelength", "level"});
+  // Every numeric variable has units and long_name.
+  for (const std::string& name : io::list_datasets(out)) {
+    const io::StoredVariable v = io::read_variable(out, name);
+    INFO(name);
+    if (v.texts.empty() && name != "level" && name != "layer" && name != "band") {
+      CHECK(v.attributes.count("units") == 1);
+      CHECK(v.attributes.count("long_name") == 1);
+    }
+  }
+  const auto g = io::read_global_attributes(out);
+  CHECK(io::text_attribute(g, "experiment") == e.text);
+  CHECK(io::text_attribute(g, "source").find("solstrata") != std::string::npos);
+  // ncdump (netcdf-bin, installed by scripts/setup) opens it as netCDF-4.
+  const std::string cmd = "ncdump -h '" + out.string() + "' > '" + out.string() + ".cdl' 2>&1";
+  if (std::system("command -v ncdump > /dev/null 2>&1") == 0) {
+    CHECK(std::system(cmd.c_str()) == 0);
+  } else {
+    WARN("ncdump not installed; netCDF check skipped");
+  }
+}
+
+TEST_CASE("given optics run exactly the layers given", "[experiment]") {
+  // One conservative layer over a black surface: reflected + transmitted = incident (exact
+  // conservation), and the direct beam is Beer-Lambert of the given optical depth.
+  const std::string text = R"(
+given_optics:
+  solar_irradiance_w_m2: 1000
+  layers:
+    - {optical_depth: 0.5, single_scattering_albedo: 1.0, asymmetry_parameter: 0.6}
+sun: {solar_zenith_deg: 60}
+surface: {albedo: 0}
+)";
+  const experiment::Experiment e = experiment::parse_experiment(text, "given.yaml", ".");
+  const experiment::RunResult r = experiment::run_experiment(e);
+  CHECK(r.toa_down == Approx(500.0).epsilon(1e-14));
+  CHECK(r.direct_down[1] == Approx(500.0 * std::exp(-0.5 / 0.5)).epsilon(1e-13));
+  CHECK(r.diffuse_up[0] + r.direct_down[1] + r.diffuse_down[1] == Approx(500.0).epsilon(1e-12));
+  CHECK(r.heating_rate.empty());
+  CHECK_FALSE(r.has_spectral_products);
+}
+
+TEST_CASE("Rayleigh-only transmittance of the direct beam at 550 nm is Beer-Lambert of tau_R", "[experiment]") {
+  // One narrow bin at 550 nm, no ozone, no aerosol: direct transmittance = exp(-tau_R / mu0)
+  // (exact for the unscattered beam); tau_R at sea level ~0.0971 (Bodhaine et al. 1999 eq. 30,
+  // via shared/checkvalues.md section 1, for 1013.25 hPa, 45 deg, 360 ppm).
+  const std::string text = R"(
+atmosphere: {ozone: false, co2_ppmv: 360, latitude_deg: 45, surface_pressure_hpa: 1013.25}
+spectrum:
+  bins: [{from_nm: 549.5, to_nm: 550.5, step_nm: 1}]
+  bands: [{name: green, from_nm: 549.5, to_nm: 550.5}]
+sun: {solar_zenith_deg: 40}
+surface: {albedo: 0}
+)";
+  const experiment::Experiment e = experiment::parse_experiment(text, "rayleigh.yaml", ".");
+  const experiment::RunResult r = experiment::run_experiment(e);
+  REQUIRE(r.band_tau_rayleigh.size() == 1);
+  const double tau = r.band_tau_rayleigh[0];
+  CHECK(tau == Approx(0.09707).epsilon(0.01));
+  CHECK(r.transmittance_direct == Approx(std::exp(-tau / r.mu0)).epsilon(1e-12));
+  // Doubling the surface pressure doubles the Rayleigh optical depth (shared/checkvalues.md
+  // section 4, exact for a column scaled in mass).
+  std::string twice = text;
+  twice.replace(twice.find("1013.25"), 7, "2026.50");
+  const experiment::RunResult r2 = experiment::run_experiment(experiment::parse_experiment(twice, "rayleigh2.yaml", "."));
+  CHECK(r2.band_tau_rayleigh[0] == Approx(2 * tau).epsilon(1e-9));
+}
