@@ -1,0 +1,136 @@
+#include "atmos/profile.hpp"
+
+#include <cmath>
+#include <numbers>
+#include <sstream>
+#include <stdexcept>
+
+namespace solstrata::atmos {
+namespace {
+
+std::string num(double x) {
+  std::ostringstream s;
+  s << x;
+  return s.str();
+}
+
+std::string check_gas(const std::vector<double>& v, std::size_t n, const char* field) {
+  if (v.empty()) return {};
+  if (v.size() != n) {
+    return std::string(field) + " has " + std::to_string(v.size()) + " values but the profile has " +
+           std::to_string(n) + " levels";
+  }
+  for (std::size_t i = 0; i < n; ++i) {
+    if (!std::isfinite(v[i]) || v[i] < 0.0 || v[i] > 1e6) {
+      return std::string(field) + "[" + std::to_string(i) + "] = " + num(v[i]) +
+             " ppmv must be finite and in [0, 1e6]";
+    }
+  }
+  return {};
+}
+
+}  // namespace
+
+std::string Profile::validate() const {
+  const std::size_t n = pressure_hpa.size();
+  if (n < 2) return "the profile needs at least 2 levels, has " + std::to_string(n);
+  if (temperature_k.size() != n || altitude_km.size() != n) {
+    return "pressure_hpa, temperature_k and altitude_km must have the same length (" +
+           std::to_string(n) + ", " + std::to_string(temperature_k.size()) + ", " +
+           std::to_string(altitude_km.size()) + ")";
+  }
+  for (std::size_t i = 0; i < n; ++i) {
+    const std::string at = std::string("[").append(std::to_string(i)).append("] = ");
+    if (!std::isfinite(pressure_hpa[i]) || pressure_hpa[i] < 0.0 || pressure_hpa[i] > 2000.0) {
+      return "pressure_hpa" + at + num(pressure_hpa[i]) + " hPa must be in [0, 2000]";
+    }
+    if (i > 0 && !(pressure_hpa[i] > pressure_hpa[i - 1])) {
+      return "pressure_hpa" + at + num(pressure_hpa[i]) +
+             " hPa must exceed the level above (levels run from the top of the atmosphere down)";
+    }
+    if (!std::isfinite(temperature_k[i]) || temperature_k[i] <= 100.0 || temperature_k[i] >= 400.0) {
+      return "temperature_k" + at + num(temperature_k[i]) + " K must be in (100, 400)";
+    }
+    if (!std::isfinite(altitude_km[i]) || altitude_km[i] < -1.0 || altitude_km[i] > 200.0) {
+      return "altitude_km" + at + num(altitude_km[i]) + " km must be in [-1, 200]";
+    }
+    if (i > 0 && !(altitude_km[i] < altitude_km[i - 1])) {
+      return "altitude_km" + at + num(altitude_km[i]) +
+             " km must be below the level above (levels run from the top of the atmosphere down)";
+    }
+  }
+  if (std::string m = check_gas(ozone_ppmv, n, "ozone_ppmv"); !m.empty()) return m;
+  if (std::string m = check_gas(h2o_ppmv, n, "h2o_ppmv"); !m.empty()) return m;
+  if (!std::isfinite(latitude_deg) || std::abs(latitude_deg) > 90.0) {
+    return "latitude_deg = " + num(latitude_deg) + " must be in [-90, 90]";
+  }
+  if (!std::isfinite(co2_ppmv) || co2_ppmv < 0.0 || co2_ppmv > 1e5) {
+    return "co2_ppmv = " + num(co2_ppmv) + " must be in [0, 1e5]";
+  }
+  return {};
+}
+
+double gravity_cm_s2(double latitude_deg, double z_m) {
+  // Bodhaine et al. (1999) eqs. 11 and 12 (List 1968).
+  const double c2p = std::cos(2.0 * latitude_deg * std::numbers::pi / 180.0);
+  const double g0 = 980.6160 * (1.0 - 0.0026373 * c2p + 0.0000059 * c2p * c2p);
+  return g0 - (3.085462e-4 + 2.27e-7 * c2p) * z_m + (7.254e-11 + 1.0e-13 * c2p) * z_m * z_m -
+         (1.517e-17 + 6e-20 * c2p) * z_m * z_m * z_m;
+}
+
+double air_molar_mass(double co2_ppmv) { return 15.0556 * co2_ppmv * 1e-6 + 28.9595; }
+
+LayerColumns layer_columns(const Profile& p) {
+  if (const std::string msg = p.validate(); !msg.empty()) throw std::invalid_argument(msg);
+  const std::size_t nl = p.n_layers();
+  LayerColumns c;
+  c.air.resize(nl);
+  c.ozone_du.assign(nl, 0.0);
+  c.h2o_cm.assign(nl, 0.0);
+  c.temperature_k.resize(nl);
+  c.mid_altitude_km.resize(nl);
+  // g: mass of one molecule of dry air.
+  const double m_air = air_molar_mass(p.co2_ppmv) / kAvogadro;
+  for (std::size_t i = 0; i < nl; ++i) {
+    const double dp = (p.pressure_hpa[i + 1] - p.pressure_hpa[i]) * 1000.0;  // hPa -> dyn cm-2
+    const double z = 0.5 * (p.altitude_km[i] + p.altitude_km[i + 1]);
+    c.mid_altitude_km[i] = z;
+    c.air[i] = dp / (m_air * gravity_cm_s2(p.latitude_deg, z * 1000.0));
+    c.temperature_k[i] = 0.5 * (p.temperature_k[i] + p.temperature_k[i + 1]);
+    if (!p.ozone_ppmv.empty()) {
+      c.ozone_du[i] = 0.5e-6 * (p.ozone_ppmv[i] + p.ozone_ppmv[i + 1]) * c.air[i] / kDobsonUnit;
+    }
+    if (!p.h2o_ppmv.empty()) {
+      const double molecules = 0.5e-6 * (p.h2o_ppmv[i] + p.h2o_ppmv[i + 1]) * c.air[i];
+      c.h2o_cm[i] = molecules * kWaterMolarMass / kAvogadro;  // g cm-2 = cm of liquid water
+    }
+  }
+  return c;
+}
+
+double total_ozone_du(const Profile& p) {
+  double s = 0.0;
+  for (double v : layer_columns(p).ozone_du) s += v;
+  return s;
+}
+
+double total_h2o_cm(const Profile& p) {
+  double s = 0.0;
+  for (double v : layer_columns(p).h2o_cm) s += v;
+  return s;
+}
+
+void scale_ozone_to(Profile& p, double target_du) {
+  if (!std::isfinite(target_du) || target_du <= 0.0 || target_du > 2000.0) {
+    throw std::invalid_argument("target total ozone " + num(target_du) +
+                                " DU must be in (0, 2000]");
+  }
+  const double now = total_ozone_du(p);
+  if (!(now > 0.0)) {
+    throw std::invalid_argument("profile '" + p.name +
+                                "' has no ozone to rescale (ozone_ppmv is empty or all zero)");
+  }
+  for (double& v : p.ozone_ppmv) v *= target_du / now;
+}
+
+}  // namespace solstrata::atmos

@@ -1,0 +1,57 @@
+// Optical properties of a whole column on a spectral grid, in the two-stream solver's layout.
+#pragma once
+
+#include <cstddef>
+#include <string>
+#include <vector>
+
+#include "atmos/profile.hpp"
+#include "optics/aerosol.hpp"
+#include "spectrum/grid.hpp"
+
+namespace solstrata::optics {
+
+/// Which components enter the optics, and how.
+struct OpticsOptions {
+  /// include Rayleigh scattering by air (Bodhaine et al. 1999)
+  bool rayleigh = true;
+  /// include ozone absorption (table in optics/ozone.hpp)
+  bool ozone = true;
+  /// include the aerosol of the AerosolSpec (its tau_ref may still be 0)
+  bool aerosol = true;
+  /// apply the ozone cross sections' temperature coefficients at each layer's mean temperature
+  bool ozone_temperature_dependence = false;
+  /// DU: when > 0, the profile's ozone is rescaled to this total column first
+  double total_ozone_du = 0.0;
+
+  /// Empty when valid, else a sentence naming the field, its value and the rule.
+  [[nodiscard]] std::string validate() const;
+};
+
+/// Column optics on a set of spectral points (now one per bin, weight 1; later (bin, k-term)
+/// pairs). Per-layer arrays use the solver's layout [layer * n_points + point], layer 0 at the
+/// top, so the points can be passed as the "problems" of one rt::solve_columns call.
+struct ColumnOptics {
+  std::size_t n_layers = 0;
+  std::size_t n_points = 0;
+  std::vector<double> tau;    ///< dimensionless: layer optical depth [layer * n_points + point]
+  std::vector<double> omega;  ///< dimensionless: layer single-scattering albedo, same layout
+  std::vector<double> g;      ///< dimensionless: layer asymmetry parameter, same layout
+  std::vector<std::size_t> point_bin;  ///< index of each point's bin in the grid [point]
+  std::vector<double> point_weight;    ///< dimensionless: share of the bin's irradiance [point]
+  std::vector<double> wavelength_nm;   ///< nm: wavelength at which each point's optics were taken
+  std::vector<double> column_tau_rayleigh;  ///< dimensionless: column Rayleigh optical depth [point]
+  std::vector<double> column_tau_ozone;     ///< dimensionless: column ozone optical depth [point]
+  std::vector<double> column_tau_aerosol;   ///< dimensionless: column aerosol optical depth [point]
+};
+
+/// Builds the optics of `profile` at every bin of `grid` (optics at each bin's centre):
+/// Rayleigh tau = cross section x layer air column; ozone tau = cross section (optionally at the
+/// layer temperature) x layer ozone column; aerosol tau = Ångström column value x layer share,
+/// with its omega and g; mixed by OpticsMixer. Throws std::invalid_argument (message names the
+/// field) when the profile, grid, aerosol or options are invalid, or a bin centre is outside
+/// the optics' range (230 nm .. 100 um).
+ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::Grid& grid,
+                                 const AerosolSpec& aerosol, const OpticsOptions& options);
+
+}  // namespace solstrata::optics
