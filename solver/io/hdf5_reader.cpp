@@ -126,7 +126,19 @@ std::vector<std::string> list_datasets(const std::filesystem::path& file) {
     std::vector<std::string> out;
     const H5::Group root = f.openGroup("/");
     for (hsize_t i = 0; i < root.getNumObjs(); ++i) {
-      if (root.getObjTypeByIdx(i) == H5G_DATASET) out.push_back(root.getObjnameByIdx(i));
+      // Creation order where the file tracks it (ours and netCDF-4's do), else name order.
+      std::string name;
+      for (H5_index_t index : {H5_INDEX_CRT_ORDER, H5_INDEX_NAME}) {
+        const ssize_t length =
+            H5Lget_name_by_idx(root.getId(), ".", index, H5_ITER_INC, i, nullptr, 0, H5P_DEFAULT);
+        if (length < 0) continue;
+        name.assign(static_cast<std::size_t>(length) + 1, '\0');
+        H5Lget_name_by_idx(root.getId(), ".", index, H5_ITER_INC, i, name.data(), name.size(),
+                           H5P_DEFAULT);
+        name.resize(static_cast<std::size_t>(length));
+        break;
+      }
+      if (!name.empty() && root.childObjType(name) == H5O_TYPE_DATASET) out.push_back(name);
     }
     return out;
   } catch (const H5::Exception& e) {
