@@ -336,20 +336,18 @@ Located<double> Section::optional_number(std::string_view key, double fallback, 
 Located<long long> Section::required_integer(std::string_view key, Range range) {
   const Entry& e = *find_required(key);
   const std::string path = key_path(key);
-  const SourceMark m = value_mark(e);
   const Located<double> x = read_number(e, key, Range{}, {});
-  long long n = 0;
-  const std::string& s = e.value.Scalar();
-  const char* first = s.data() + (!s.empty() && s.front() == '+' ? 1 : 0);
-  const auto [ptr, ec] = std::from_chars(first, s.data() + s.size(), n);
-  if (ec != std::errc() || ptr != s.data() + s.size()) {
-    throw error_at(m, path, "expected a whole number, got " + format_number(x.value));
+  // Whole numbers are exact in a double up to 2^53; "1e3" is accepted as 1000.
+  constexpr double kExactLimit = 9007199254740992.0;
+  if (x.value != std::trunc(x.value) || std::fabs(x.value) > kExactLimit) {
+    throw error_at(x.mark, path, "expected a whole number, got " + format_number(x.value));
   }
-  if (!range.contains(static_cast<double>(n))) {
-    throw error_at(m, path,
+  const auto n = static_cast<long long>(x.value);
+  if (!range.contains(x.value)) {
+    throw error_at(x.mark, path,
                    "expected " + range.describe(last_name(path)) + ", got " + std::to_string(n));
   }
-  return {n, m, path};
+  return {n, x.mark, path};
 }
 
 Located<long long> Section::optional_integer(std::string_view key, long long fallback,

@@ -273,6 +273,11 @@ TEST_CASE("a fraction where a whole number is expected is rejected", "[experimen
   const std::string text = "threads: 2.5\n";
   const InputError e = error_from(text, [](Section& root) { root.required_integer("threads"); });
   check_error(e, position_of(text, "2.5"), "threads", {"expected a whole number, got 2.5"});
+  Section exponent = Document::parse("count: 1e3\n", "exp.yaml").root();
+  CHECK(exponent.required_integer("count").value == 1000);
+  const std::string huge = "count: 1e300\n";
+  const InputError e_huge = error_from(huge, [](Section& root) { root.required_integer("count"); });
+  check_error(e_huge, position_of(huge, "1e300"), "count", {"expected a whole number, got 1e+300"});
   const std::string text0 = "threads: 0\n";
   const InputError e0 = error_from(text0, [](Section& root) {
     root.required_integer("threads", Range::at_least(1));

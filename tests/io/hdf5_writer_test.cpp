@@ -172,6 +172,32 @@ TEST_CASE("ncdump opens the file as a netCDF-4 dataset", "[io]") {
   CHECK_THAT(data.output, Catch::Contains("band_name = \"blue\", \"green, with comma\" ;"));
 }
 
+TEST_CASE("h5py sees the dimension scales of each variable", "[io]") {
+  // h5py (the reader under xarray's h5netcdf engine) is a second independent reader. Debian's
+  // python3-h5py lives in the system interpreter, which may not be the first python3 on PATH.
+  std::string python;
+  for (const std::string candidate : {"python3", "/usr/bin/python3"}) {
+    if (solstrata::testing::run_command(candidate + " -c 'import h5py'").status == 0) {
+      python = candidate;
+      break;
+    }
+  }
+  if (python.empty()) {
+    WARN("no python3 with h5py found (Debian package python3-h5py): the h5py check is skipped");
+    return;
+  }
+  TempDir dir("h5");
+  const auto path = dir / "example.h5";
+  write_example(path);
+  const auto result = solstrata::testing::run_command(
+      python + " -c \"import h5py,sys; f=h5py.File(sys.argv[1],'r'); v=f['flux_down']; "
+               "print([list(d.keys()) for d in v.dims], v.attrs['units'].decode(), "
+               "h5py.h5ds.is_scale(f['layer'].id), list(f['level'][:]))\" " + path.string());
+  INFO(result.output);
+  REQUIRE(result.status == 0);
+  CHECK(result.output == "[['band'], ['level']] W m-2 True [100.0, 500.0, 1000.0]\n");
+}
+
 TEST_CASE("rows along a growing dimension can be written in any order", "[io]") {
   TempDir dir("h5");
   const auto path = dir / "rows.h5";
@@ -193,7 +219,7 @@ TEST_CASE("rows along a growing dimension can be written in any order", "[io]") 
   CHECK(up.dimensions == std::vector<std::string>{"scenario", "level"});
   CHECK(up.shape == std::vector<std::size_t>{3, 3});
   // Row 1 was never written: it holds netCDF's default double fill value (NC_FILL_DOUBLE,
-  // from memory 9.9692099683868690e+36), which netCDF readers show as missing.
+  // from memory 9.9692099683868690e+36); ncdump below confirms by printing it as missing, '_'.
   const double fill = 9.9692099683868690e+36;
   CHECK(up.values == std::vector<double>{1, 2, 3, fill, fill, fill, 7, 8, 9});
   // Every variable along the growing dimension grows with it.
