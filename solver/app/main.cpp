@@ -6,6 +6,7 @@
 #include <string_view>
 #include <vector>
 
+#include "app/commands.hpp"
 #include "app/demo.hpp"
 #include "version.hpp"
 
@@ -19,7 +20,11 @@ usage: solstrata <command> [options]
        solstrata --help | --version
 
 commands:
+  run         run an experiment file and write its results (HDF5, optional CSV)
+  check       validate an experiment file without running it
   demo        solve a built-in demo column and print its level fluxes
+
+Experiment keys: docs/experiment-keys.md; examples in config/.
 
 Run 'solstrata <command> --help' for the options of a command.
 
@@ -113,5 +118,7 @@ int main(int argc, char** argv) {
     return 0;
   }
   if (cmd == "demo") return demo_command(rest);
+  if (cmd == "run") return app::run_command(rest);
+  if (cmd == "check") return app::check_command(rest);
   return usage_error("unknown command '" + cmd + "'");
 }

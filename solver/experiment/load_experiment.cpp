@@ -375,6 +375,11 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
   e.title = root.optional_string("title", "").value;
   e.segments = spectrum::default_segments();
   e.bands = spectrum::default_bands();
+  // The default bands start at 280 nm; a UV-C band over the rest of the default grid makes the
+  // bands tile it, so that broadband = sum of bands.
+  if (e.segments.front().from_nm < e.bands.front().lower_nm) {
+    e.bands.insert(e.bands.begin(), spectrum::Band{"UV-C", e.segments.front().from_nm, e.bands.front().lower_nm});
+  }
 
   e.given_optics_mode = root.has("given_optics");
   if (e.given_optics_mode) {
