@@ -1,0 +1,116 @@
+#include "io/result_fields.hpp"
+
+namespace solstrata::io {
+
+ResultDims result_dims(const experiment::RunResult& r) {
+  return {r.n_levels, r.n_layers, r.n_bands, r.bin_direct_down.empty() ? 0 : r.bin_center_nm.size()};
+}
+
+std::vector<Field> result_fields(const experiment::RunResult& r) {
+  using experiment::kSolarCaution;
+  using experiment::kUvCaution;
+  std::vector<Field> f;
+  const auto add = [&](std::string name, std::vector<std::string> dims, std::vector<double> v, std::string units,
+                       std::string long_name, std::string standard_name = "") -> Field& {
+    Field x;
+    x.name = std::move(name);
+    x.dims = std::move(dims);
+    x.values = std::move(v);
+    x.units = std::move(units);
+    x.long_name = std::move(long_name);
+    x.standard_name = std::move(standard_name);
+    x.on_levels = !x.dims.empty() && x.dims.back() == "level" && !r.level_pressure_hpa.empty();
+    f.push_back(std::move(x));
+    return f.back();
+  };
+  const auto scalar = [&](std::string name, double v, std::string units, std::string long_name,
+                          std::string standard_name = "") -> Field& {
+    return add(std::move(name), {}, {v}, std::move(units), std::move(long_name), std::move(standard_name));
+  };
+
+  // Band table (the same for every scenario).
+  {
+    Field names;
+    names.name = "band_name";
+    names.dims = {"band"};
+    names.texts = r.band_names;
+    names.long_name = "name of the reporting band";
+    names.per_scenario = false;
+    f.push_back(std::move(names));
+    std::vector<double> centers(r.n_bands);
+    for (std::size_t b = 0; b < r.n_bands; ++b) centers[b] = 0.5 * (r.band_lower_nm[b] + r.band_upper_nm[b]);
+    add("band_lower", {"band"}, r.band_lower_nm, "nm", "lower wavelength edge of the band (0 = not stated)").per_scenario = false;
+    add("band_upper", {"band"}, r.band_upper_nm, "nm", "upper wavelength edge of the band (0 = not stated)").per_scenario = false;
+    add("band_center", {"band"}, centers, "nm", "centre wavelength of the band (0 = not stated)").per_scenario = false;
+  }
+  if (!r.level_pressure_hpa.empty()) {
+    add("level_pressure", {"level"}, r.level_pressure_hpa, "hPa", "air pressure at the level (level 0 = top of atmosphere)", "air_pressure").on_levels = false;
+  }
+  if (!r.level_altitude_km.empty()) {
+    add("level_altitude", {"level"}, r.level_altitude_km, "km", "altitude of the level above mean sea level", "altitude").on_levels = false;
+  }
+
+  add("flux_direct_down", {"level"}, r.direct_down, "W m-2", "broadband direct (unscattered) downward flux on a horizontal surface", "direct_downwelling_shortwave_flux_in_air");
+  add("flux_diffuse_down", {"level"}, r.diffuse_down, "W m-2", "broadband diffuse downward flux", "diffuse_downwelling_shortwave_flux_in_air");
+  add("flux_up", {"level"}, r.diffuse_up, "W m-2", "broadband upward flux", "upwelling_shortwave_flux_in_air");
+  add("flux_net_down", {"level"}, r.net_down, "W m-2", "broadband net downward flux (down minus up)", "net_downward_shortwave_flux_in_air");
+  add("band_flux_direct_down", {"band", "level"}, r.band_direct_down, "W m-2", "direct (unscattered) downward flux in the band");
+  add("band_flux_diffuse_down", {"band", "level"}, r.band_diffuse_down, "W m-2", "diffuse downward flux in the band");
+  add("band_flux_up", {"band", "level"}, r.band_diffuse_up, "W m-2", "upward flux in the band");
+  add("band_flux_net_down", {"band", "level"}, r.band_net_down, "W m-2", "net downward flux in the band");
+  add("absorbed", {"layer"}, r.absorbed, "W m-2", "broadband flux absorbed in the layer (net-flux divergence)");
+  add("band_absorbed", {"band", "layer"}, r.band_absorbed, "W m-2", "flux absorbed in the layer within the band");
+  if (!r.heating_rate.empty()) {
+    add("heating_rate", {"layer"}, r.heating_rate, "K day-1", "shortwave heating rate of the layer, (g/cp) dF_net/dp",
+        "tendency_of_air_temperature_due_to_shortwave_heating");
+  }
+  add("band_transmittance_direct", {"band"}, r.band_transmittance_direct, "1", "direct surface flux / TOA downward flux in the band");
+  add("band_transmittance_diffuse", {"band"}, r.band_transmittance_diffuse, "1", "diffuse surface flux / TOA downward flux in the band");
+  add("band_transmittance_total", {"band"}, r.band_transmittance_total, "1", "global surface flux / TOA downward flux in the band");
+  add("band_planetary_albedo", {"band"}, r.band_planetary_albedo, "1", "TOA upward flux / TOA downward flux in the band");
+  if (!r.band_tau_rayleigh.empty()) {
+    add("band_optical_depth_rayleigh", {"band"}, r.band_tau_rayleigh, "1", "column Rayleigh optical depth, TOA-irradiance-weighted mean over the band's bins");
+    add("band_optical_depth_ozone", {"band"}, r.band_tau_ozone, "1", "column ozone absorption optical depth, TOA-irradiance-weighted mean over the band's bins");
+    add("band_optical_depth_aerosol", {"band"}, r.band_tau_aerosol, "1", "column aerosol optical depth, TOA-irradiance-weighted mean over the band's bins",
+        "atmosphere_optical_thickness_due_to_ambient_aerosol_particles");
+  }
+  scalar("transmittance_direct", r.transmittance_direct, "1", "broadband direct surface flux / TOA downward flux");
+  scalar("transmittance_diffuse", r.transmittance_diffuse, "1", "broadband diffuse surface flux / TOA downward flux");
+  scalar("transmittance_total", r.transmittance_total, "1", "broadband global surface flux / TOA downward flux");
+  scalar("planetary_albedo", r.planetary_albedo, "1", "broadband TOA upward flux / TOA downward flux");
+  scalar("surface_reflectance", r.surface_reflectance, "1", "broadband surface upward flux / surface downward flux");
+  scalar("toa_flux_down", r.toa_down, "W m-2", "broadband downward flux at the top of the atmosphere", "toa_incoming_shortwave_flux");
+  scalar("toa_flux_up", r.toa_up, "W m-2", "broadband upward flux at the top of the atmosphere", "toa_outgoing_shortwave_flux");
+  scalar("absorbed_atmosphere", r.absorbed_atmosphere, "W m-2", "broadband flux absorbed by the whole atmosphere");
+  scalar("absorbed_surface", r.absorbed_surface, "W m-2", "broadband flux absorbed by the surface (net downward at the surface)", "surface_net_downward_shortwave_flux");
+  scalar("direct_normal_irradiance", r.direct_normal, "W m-2", "direct-normal irradiance (DNI) at the surface").notes = {{"caution", kSolarCaution}};
+  scalar("diffuse_horizontal_irradiance", r.diffuse_horizontal, "W m-2", "diffuse horizontal irradiance (DHI) at the surface", "surface_diffuse_downwelling_shortwave_flux_in_air");
+  scalar("global_horizontal_irradiance", r.global_horizontal, "W m-2", "global horizontal irradiance (GHI) at the surface", "surface_downwelling_shortwave_flux_in_air").notes = {{"caution", kSolarCaution}};
+  if (r.has_spectral_products) {
+    scalar("par_energy", r.par_w_m2, "W m-2", "photosynthetically active radiation (400-700 nm) at the surface, energy flux",
+           "surface_downwelling_photosynthetic_radiative_flux_in_air");
+    scalar("par_photon", r.par_umol_m2_s, "umol m-2 s-1", "photosynthetically active radiation (400-700 nm) at the surface, photon flux",
+           "surface_downwelling_photosynthetic_photon_flux_in_air")
+        .notes = {{"conversion", "per bin, energy x mean wavelength / (h c N_A) (McCree 1972; SI 2019 constants)"}};
+    Field& uv = scalar("uv_index", r.uv_index, "1", "UV index at the surface: 40 m2 W-1 x CIE erythemally weighted irradiance");
+    uv.notes = {{"action_spectrum", "CIE erythema reference action spectrum, ISO 17166:1999 / CIE S 007/E:1998"},
+                {"caution", kUvCaution}};
+    if (r.solar_approximate) uv.notes.emplace_back("quality", "indicative: computed with the built-in approximate solar spectrum");
+  }
+  scalar("solar_zenith_angle", r.solar_zenith_deg, "degree", "solar zenith angle", "solar_zenith_angle");
+  scalar("cos_solar_zenith", r.mu0, "1", "cosine of the solar zenith angle");
+  scalar("earth_sun_factor", r.earth_sun_factor, "1", "(mean Earth-Sun distance / distance)^2 applied to the TOA irradiance");
+  scalar("toa_normal_irradiance", r.toa_normal_w_m2, "W m-2", "TOA solar irradiance normal to the beam, all bins");
+
+  if (!r.bin_direct_down.empty()) {
+    add("bin_lower", {"wavelength"}, r.bin_lower_nm, "nm", "lower edge of the spectral bin").per_scenario = false;
+    add("bin_upper", {"wavelength"}, r.bin_upper_nm, "nm", "upper edge of the spectral bin").per_scenario = false;
+    add("bin_toa_normal_irradiance", {"wavelength"}, r.bin_toa_normal, "W m-2", "TOA solar irradiance normal to the beam, integrated over the bin");
+    add("spectral_flux_direct_down", {"wavelength", "level"}, r.bin_direct_down, "W m-2", "direct downward flux integrated over the bin");
+    add("spectral_flux_diffuse_down", {"wavelength", "level"}, r.bin_diffuse_down, "W m-2", "diffuse downward flux integrated over the bin");
+    add("spectral_flux_up", {"wavelength", "level"}, r.bin_diffuse_up, "W m-2", "upward flux integrated over the bin");
+  }
+  return f;
+}
+
+}  // namespace solstrata::io
