@@ -3,14 +3,27 @@
 #include <cstdio>
 #include <filesystem>
 #include <iostream>
+#include <optional>
 #include <stdexcept>
 
 #include "app/summary_table.hpp"
 #include "experiment/experiment.hpp"
 #include "experiment/input_error.hpp"
 #include "experiment/run.hpp"
+#include "experiment/sweep.hpp"
+#include "experiment/sweep_run.hpp"
 #include "io/atomic_file.hpp"
+#include "io/checkpoint.hpp"
+#include "io/result_fields.hpp"
 #include "io/result_file.hpp"
+#include "io/sweep_file.hpp"
+
+#include <atomic>
+#include <chrono>
+#include <csignal>
+#include <cstdlib>
+#include <thread>
+#include <unistd.h>
 
 namespace solstrata::app {
 namespace {
@@ -26,17 +39,22 @@ options:
                       EXPERIMENT.h5 in the working directory)
   --csv FILE          also write a flat CSV summary (one row per band and a broadband row)
   --spectral          also write per-bin level fluxes (wavelength dimension)
-  -q, --quiet         print nothing but errors
+  -j, --jobs N        worker threads for sweeps (default: the machine's cores)
+  --resume            continue an interrupted sweep from its checkpoint (OUT.h5.partial)
+  -q, --quiet         print nothing but errors (no progress line)
   -h, --help          show this help
 
 The output file is written under a temporary name and renamed when complete: a failed run
-leaves no file behind.
-exit codes: 0 success, 1 the run failed, 2 bad input or bad usage
+leaves no file behind. A sweep records each finished scenario in OUT.h5.partial (append-only,
+checksummed) as it goes; after Ctrl-C, SIGTERM or a crash, 'solstrata run EXP.yaml --resume'
+continues where it stopped and ends with the same file as an uninterrupted run.
+exit codes: 0 success, 1 the run failed, 2 bad input or bad usage, 130 interrupted (resumable)
 )";
 
 constexpr const char* kCheckHelp = R"(usage: solstrata check EXPERIMENT.yaml
 
-Reads and validates the experiment without running it, and prints what a run would do.
+Reads and validates the experiment (every scenario of a sweep) without running it, and prints
+what a run would do: scenario count and estimated output size.
 Errors name the file, line, column and key, and what was expected.
 
 options:
@@ -51,7 +69,12 @@ struct RunOptions {
   std::string csv;         ///< CSV summary path ("" = from the experiment or none)
   bool spectral = false;   ///< write per-bin fluxes
   bool quiet = false;      ///< no terminal output
+  bool resume = false;     ///< continue an interrupted sweep
+  unsigned jobs = 0;       ///< worker threads (0 = the machine's cores)
 };
+
+std::atomic<bool> g_stop{false};
+extern "C" void on_signal(int) { g_stop.store(true); }
 
 int usage(const std::string& cmd, const std::string& msg) {
   std::cerr << "solstrata " << cmd << ": " << msg << "\nRun 'solstrata " << cmd << " --help' for usage.\n";
@@ -78,6 +101,19 @@ int parse(const std::string& cmd, const std::vector<std::string>& args, RunOptio
       o.spectral = true;
     } else if (cmd == "run" && (a == "-q" || a == "--quiet")) {
       o.quiet = true;
+    } else if (cmd == "run" && a == "--resume") {
+      o.resume = true;
+    } else if (cmd == "run" && (a == "-j" || a == "--jobs")) {
+      std::string v;
+      if (!next(v)) return usage(cmd, a + " needs a number of threads");
+      try {
+        std::size_t used = 0;
+        const long n = std::stol(v, &used);
+        if (used != v.size() || n < 1 || n > 1024) throw std::out_of_range(v);
+        o.jobs = static_cast<unsigned>(n);
+      } catch (...) {
+        return usage(cmd, a + " " + v + ": expected a whole number of threads, 1 to 1024");
+      }
     } else if (!a.empty() && a[0] == '-') {
       return usage(cmd, "unknown option '" + a + "'");
     } else if (o.experiment.empty()) {
@@ -90,14 +126,155 @@ int parse(const std::string& cmd, const std::vector<std::string>& args, RunOptio
   return -1;
 }
 
+/// Progress on stderr, at most five times a second, only when stderr is a terminal.
+class Progress {
+ public:
+  Progress(std::size_t total, std::size_t already, bool enabled)
+      : total_(total), done_(already), start_done_(already), enabled_(enabled && ::isatty(2)),
+        t0_(std::chrono::steady_clock::now()) {}
+  void step() {
+    ++done_;
+    if (!enabled_) return;
+    const auto now = std::chrono::steady_clock::now();
+    if (done_ < total_ && now - last_ < std::chrono::milliseconds(200)) return;
+    last_ = now;
+    const double secs = std::chrono::duration<double>(now - t0_).count();
+    const double rate = secs > 0 ? double(done_ - start_done_) / secs : 0.0;
+    const double left = rate > 0 ? double(total_ - done_) / rate : 0.0;
+    std::fprintf(stderr, "\r%zu/%zu scenarios (%.1f%%), %.1f/s, %.0f s left   ", done_, total_,
+                 100.0 * double(done_) / double(total_), rate, left);
+    if (done_ == total_) std::fprintf(stderr, "\n");
+  }
+
+ private:
+  std::size_t total_, done_, start_done_;
+  bool enabled_;
+  std::chrono::steady_clock::time_point t0_, last_{};
+};
+
+int run_sweep(const experiment::Study& study, const experiment::Experiment& e, const RunOptions& o) {
+  namespace fs = std::filesystem;
+  const fs::path out = e.output.file;
+  const fs::path ckpt = out.string() + ".partial";
+  const bool spectral = e.output.spectral;
+  const std::uint64_t hash = io::experiment_hash(study.base().text, spectral);
+  const std::size_t n = study.size();
+  // Crash injection for tests: SIGKILL ourselves after this many appended records.
+  const char* kill_env = std::getenv("SOLSTRATA_TEST_KILL_AFTER");
+  const long kill_after = kill_env ? std::atol(kill_env) : -1;
+
+  io::CheckpointContents have;
+  bool resuming = false;
+  std::error_code ec;
+  if (fs::exists(ckpt, ec)) {
+    if (!o.resume) {
+      std::cerr << "solstrata run: an interrupted run left " << ckpt.string()
+                << "; continue it with --resume, or delete it to start afresh\n";
+      return kExitBadInput;
+    }
+    try {
+      have = io::read_checkpoint(ckpt);
+    } catch (const std::exception& ex) {
+      std::cerr << "solstrata run: " << ex.what() << "\n";
+      return kExitBadInput;
+    }
+    if (have.header.experiment_hash != hash || have.header.n_scenarios != n) {
+      std::cerr << "solstrata run: cannot resume: " << ckpt.string() << " was made by a different experiment "
+                << "(the experiment file or its output options changed since); delete it to start afresh\n";
+      return kExitBadInput;
+    }
+    resuming = true;
+  }
+  experiment::SweepOptions opt;
+  opt.threads = o.jobs ? o.jobs : std::max(1u, std::thread::hardware_concurrency());
+  opt.spectral = spectral;
+  opt.stop = &g_stop;
+  g_stop.store(false);
+  std::signal(SIGINT, on_signal);
+  std::signal(SIGTERM, on_signal);
+  const auto t0 = std::chrono::steady_clock::now();
+  try {
+    // Scenario 0 fixes the record layout; a fresh run records it first.
+    const experiment::ScenarioResult templ = experiment::run_scenario(study, 0, spectral);
+    const bool with_effect = study.has_aerosol();
+    const std::size_t record_values = io::scenario_record(templ, with_effect).size();
+    std::optional<io::CheckpointWriter> writer;
+    if (resuming) {
+      if (have.header.record_values != record_values) {
+        std::cerr << "solstrata run: cannot resume: " << ckpt.string() << " has a different record layout\n";
+        return kExitBadInput;
+      }
+      writer.emplace(ckpt, have.header, true, have.valid_bytes);
+    } else {
+      writer.emplace(ckpt, io::CheckpointHeader{hash, n, record_values}, false);
+    }
+    long appended = 0;
+    const auto record = [&](const experiment::ScenarioResult& s) {
+      writer->append(s.index, io::scenario_record(s, with_effect));
+      if (kill_after >= 0 && ++appended >= kill_after) std::raise(SIGKILL);
+    };
+    std::vector<std::size_t> todo;
+    for (std::size_t i = 0; i < n; ++i)
+      if (!have.offsets.count(i)) todo.push_back(i);
+    Progress progress(n, n - todo.size(), !o.quiet);
+    if (!todo.empty() && todo.front() == 0) {
+      record(templ);
+      progress.step();
+      todo.erase(todo.begin());
+    }
+    const std::size_t finished = experiment::run_scenarios(study, todo, opt, [&](experiment::ScenarioResult&& s) {
+      record(s);
+      progress.step();
+    });
+    writer.reset();
+    if (finished < todo.size()) {
+      std::cerr << "\nsolstrata run: interrupted; " << ckpt.string() << " keeps the finished scenarios. "
+                << "Continue with: solstrata run " << o.experiment << (o.output.empty() ? "" : " -o " + o.output)
+                << (spectral && !study.base().output.spectral ? " --spectral" : "") << " --resume\n";
+      return 130;
+    }
+    const io::CheckpointContents all = io::read_checkpoint(ckpt);
+    io::write_sweep_file(out, study, templ, ckpt, all);
+    fs::remove(ckpt, ec);
+    if (!o.quiet) {
+      const double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+      std::cout << "solstrata run: " << o.experiment << ": " << n << " scenarios";
+      if (resuming) std::cout << " (" << have.offsets.size() << " from the checkpoint)";
+      std::cout << " in " << secs << " s on " << opt.threads << " thread(s)\n";
+      if (with_effect) std::cout << "aerosol radiative effects: aerosol_effect_toa/surface/atmosphere (W m-2, negative = cooling)\n";
+      std::cout << "caution: " << experiment::kSolarCaution << "\n";
+      std::cout << "wrote " << out.string() << "\n";
+    }
+    return kExitOk;
+  } catch (const experiment::InputError& ex) {
+    std::cerr << ex.what() << "\n";
+    return kExitBadInput;
+  } catch (const std::exception& ex) {
+    std::cerr << o.experiment << ": sweep failed: " << ex.what() << " (finished scenarios stay in " << ckpt.string()
+              << "; fix the cause and use --resume)\n";
+    return kExitRunFailed;
+  }
+}
+
 }  // namespace
 
 int check_command(const std::vector<std::string>& args) {
   RunOptions o;
   if (int rc = parse("check", args, o, kCheckHelp); rc >= 0) return rc;
   try {
-    const experiment::Experiment e = experiment::load_experiment(o.experiment);
-    print_check_summary(std::cout, e);
+    const experiment::Study study = experiment::Study::load(o.experiment);
+    study.validate_all();
+    const experiment::RunResult probe = experiment::run_scenario(study, 0, study.base().output.spectral).result;
+    std::size_t values = 0;
+    for (const io::Field& f : io::result_fields(probe)) values += f.per_scenario ? f.values.size() * study.size() : f.values.size();
+    print_check_summary(std::cout, study.base());
+    std::cout << "  scenarios:   " << study.size();
+    if (!study.plan().axes.empty()) {
+      std::cout << " (" << (study.plan().from_list ? "list" : "grid");
+      for (std::size_t a = 0; a < study.plan().axes.size(); ++a) std::cout << (a ? " x " : " ") << study.plan().axes[a].size();
+      std::cout << ")";
+    }
+    std::cout << "\n  est. output: " << (values * 8 + 65536) / 1024 << " KiB\n";
     return kExitOk;
   } catch (const experiment::InputError& ex) {
     std::cerr << ex.what() << "\n";
@@ -111,9 +288,10 @@ int check_command(const std::vector<std::string>& args) {
 int run_command(const std::vector<std::string>& args) {
   RunOptions o;
   if (int rc = parse("run", args, o, kRunHelp); rc >= 0) return rc;
-  experiment::Experiment e;
+  std::optional<experiment::Study> study;
   try {
-    e = experiment::load_experiment(o.experiment);
+    study.emplace(experiment::Study::load(o.experiment));
+    study->validate_all();
   } catch (const experiment::InputError& ex) {
     std::cerr << ex.what() << "\n";
     return kExitBadInput;
@@ -121,6 +299,7 @@ int run_command(const std::vector<std::string>& args) {
     std::cerr << o.experiment << ": error: " << ex.what() << "\n";
     return kExitBadInput;
   }
+  experiment::Experiment e = study->base();
   if (!o.output.empty()) e.output.file = o.output;
   if (!o.csv.empty()) e.output.csv = o.csv;
   if (o.spectral) e.output.spectral = true;
@@ -132,6 +311,7 @@ int run_command(const std::vector<std::string>& args) {
       return kExitBadInput;
     }
   }
+  if (!study->plan().axes.empty()) return run_sweep(*study, e, o);
   experiment::RunResult r;
   try {
     r = experiment::run_experiment(e);

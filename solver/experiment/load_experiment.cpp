@@ -425,6 +425,7 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
       o->check_no_unknown_keys();
     }
   }
+  (void)root.has("sweep");  // read by Study (experiment/sweep.hpp)
   root.check_no_unknown_keys();
   return e;
 }

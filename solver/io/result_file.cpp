@@ -7,6 +7,7 @@
 #include "io/csv_writer.hpp"
 #include "io/hdf5_writer.hpp"
 #include "io/result_fields.hpp"
+#include "io/sweep_file.hpp"
 #include "version.hpp"
 
 namespace solstrata::io {
@@ -71,6 +72,158 @@ void write_result_file(const std::filesystem::path& path, const experiment::Expe
     set_field_attributes(w, f);
   }
   write_global_attributes(w, e, r);
+  w.commit();
+}
+
+std::string sweep_variable_name(const std::string& path) {
+  std::string n;
+  for (char c : path) {
+    if (c == '.' || c == '[') n += '_';
+    else if (c != ']') n += c;
+  }
+  return n;
+}
+
+std::uint64_t experiment_hash(const std::string& text, bool spectral) {
+  const std::string extra = spectral ? "\n#spectral" : "\n#no-spectral";
+  return fnv1a(extra.data(), extra.size(), fnv1a(text.data(), text.size()));
+}
+
+std::vector<double> scenario_record(const experiment::ScenarioResult& s, bool with_effect) {
+  std::vector<double> v;
+  for (const Field& f : result_fields(s.result)) {
+    if (f.per_scenario && f.texts.empty()) v.insert(v.end(), f.values.begin(), f.values.end());
+  }
+  if (with_effect) {
+    v.push_back(s.effect.toa);
+    v.push_back(s.effect.surface);
+    v.push_back(s.effect.atmosphere);
+  }
+  return v;
+}
+
+namespace {
+/// Unit of a swept key, from the unit suffix of its name (the experiment keys state their unit).
+std::string unit_of_key(const std::string& path) {
+  const auto ends = [&](const char* s) {
+    const std::string t(s);
+    return path.size() >= t.size() && path.compare(path.size() - t.size(), t.size(), t) == 0;
+  };
+  if (ends("_deg")) return "degree";
+  if (ends("_nm")) return "nm";
+  if (ends("_hpa")) return "hPa";
+  if (ends("_km")) return "km";
+  if (ends("_du")) return "DU";
+  if (ends("_ppmv")) return "ppmv";
+  if (ends("_w_m2")) return "W m-2";
+  return "1";
+}
+}  // namespace
+
+void write_sweep_file(const std::filesystem::path& path, const experiment::Study& study,
+                      const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
+                      const CheckpointContents& contents) {
+  const std::size_t n = study.size();
+  const bool with_effect = study.has_aerosol();
+  const std::vector<Field> fields = result_fields(templ.result);
+  Hdf5Writer w(path);
+  add_result_dimensions(w, templ.result);
+  w.add_dimension("scenario", n);
+
+  // Swept parameters as coordinates along the scenario dimension.
+  std::string coords;
+  for (const experiment::SweepParameter* p : study.plan().parameters()) {
+    std::vector<double> v(n);
+    for (std::size_t i = 0; i < n; ++i)
+      for (const auto& [k, x] : study.plan().assignment(i))
+        if (k == p->path) v[i] = x;
+    const std::string name = sweep_variable_name(p->path);
+    w.write(name, {"scenario"}, v, {unit_of_key(p->path), "swept parameter " + p->path, ""});
+    w.set_attribute(name, "parameter_path", p->path);
+    coords += (coords.empty() ? "" : " ") + name;
+  }
+
+  // The same for every scenario: band table, bins.
+  for (const Field& f : fields) {
+    if (f.per_scenario) continue;
+    const VariableAttributes a{f.units, f.long_name, f.standard_name};
+    if (!f.texts.empty()) w.write(f.name, f.dims, std::span<const std::string>(f.texts), a);
+    else w.write(f.name, f.dims, std::span<const double>(f.values), a);
+  }
+
+  // Per-scenario variables: small ones gathered and written whole, large ones row by row.
+  struct Slot {
+    const Field* f;
+    std::size_t offset, size;
+    bool rows;
+    std::vector<double> buffer;
+  };
+  std::vector<Slot> slots;
+  std::size_t offset = 0;
+  constexpr std::size_t kRowThreshold = 2048;
+  for (const Field& f : fields) {
+    if (!f.per_scenario || !f.texts.empty()) continue;
+    slots.push_back({&f, offset, f.values.size(), f.values.size() > kRowThreshold, {}});
+    offset += f.values.size();
+  }
+  if (offset + (with_effect ? 3 : 0) != contents.header.record_values) {
+    throw OutputError(checkpoint.string() + ": record layout does not match this experiment");
+  }
+  const auto dims_of = [](const Field& f) {
+    std::vector<std::string> d{"scenario"};
+    d.insert(d.end(), f.dims.begin(), f.dims.end());
+    return d;
+  };
+  for (Slot& s : slots) {
+    if (s.rows) w.define_rows(s.f->name, dims_of(*s.f), {s.f->units, s.f->long_name, s.f->standard_name});
+    else s.buffer.reserve(s.size * n);
+  }
+  std::vector<double> toa(with_effect ? n : 0), sfc(with_effect ? n : 0), atm(with_effect ? n : 0);
+  for (std::size_t i = 0; i < n; ++i) {
+    const auto it = contents.offsets.find(i);
+    if (it == contents.offsets.end()) throw OutputError(checkpoint.string() + ": scenario " + std::to_string(i) + " is missing");
+    const std::vector<double> rec = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
+    for (Slot& s : slots) {
+      const std::span<const double> part(rec.data() + s.offset, s.size);
+      if (s.rows) w.write_row(s.f->name, i, part);
+      else s.buffer.insert(s.buffer.end(), part.begin(), part.end());
+    }
+    if (with_effect) {
+      toa[i] = rec[offset];
+      sfc[i] = rec[offset + 1];
+      atm[i] = rec[offset + 2];
+    }
+  }
+  for (Slot& s : slots) {
+    if (!s.rows) w.write(s.f->name, dims_of(*s.f), s.buffer, {s.f->units, s.f->long_name, s.f->standard_name});
+    const std::string c = coords + (s.f->on_levels ? " level_pressure" : "");
+    if (!c.empty()) w.set_attribute(s.f->name, "coordinates", c);
+    set_field_attributes(w, *s.f);
+  }
+  if (with_effect) {
+    const char* sign = " (net downward flux with aerosol minus without; negative = the aerosol cools, positive = it warms)";
+    w.write("aerosol_effect_toa", {"scenario"}, toa, {"W m-2", std::string("instantaneous aerosol radiative effect at the top of the atmosphere") + sign, ""});
+    w.write("aerosol_effect_surface", {"scenario"}, sfc, {"W m-2", std::string("instantaneous aerosol radiative effect at the surface") + sign, ""});
+    w.write("aerosol_effect_atmosphere", {"scenario"}, atm, {"W m-2", "instantaneous aerosol radiative effect in the atmosphere (TOA effect minus surface effect; positive = aerosol heats the air)", ""});
+    for (const char* v : {"aerosol_effect_toa", "aerosol_effect_surface", "aerosol_effect_atmosphere"})
+      if (!coords.empty()) w.set_attribute(v, "coordinates", coords);
+  }
+  write_global_attributes(w, study.base(), templ.result);
+  w.set_attribute("", "sweep_scenarios", static_cast<int>(n));
+  w.set_attribute("", "sweep_kind", study.plan().from_list ? "list" : "grid");
+  std::vector<double> shape;
+  std::string axes;
+  for (const experiment::SweepAxis& a : study.plan().axes) {
+    shape.push_back(static_cast<double>(a.size()));
+    std::string names;
+    for (const auto& p : a.parameters) names += (names.empty() ? "" : "+") + p.path;
+    axes += (axes.empty() ? "" : " x ") + names;
+  }
+  w.set_attribute("", "sweep_shape", shape);
+  w.set_attribute("", "sweep_axes", axes);
+  w.set_attribute("", "sweep_layout",
+                  "scenario index is row-major over sweep_axes (last axis fastest): reshape any (scenario, ...) "
+                  "variable to sweep_shape + its other dimensions for an N-D grid");
   w.commit();
 }
 

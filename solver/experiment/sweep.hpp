@@ -1,0 +1,80 @@
+// Sweeps: many scenarios from one experiment file, by grids or zipped lists over any numeric key.
+#pragma once
+
+#include <cstddef>
+#include <filesystem>
+#include <memory>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "experiment/experiment.hpp"
+#include "experiment/input_error.hpp"
+
+namespace solstrata::experiment {
+
+/// One swept parameter: a key path in the experiment file and its values.
+struct SweepParameter {
+  std::string path;            ///< dotted key path, e.g. "aerosol.optical_depth" or "given_optics.layers[0].optical_depth"
+  std::vector<double> values;  ///< one value per point of its axis, in the key's unit
+  SourceMark mark;             ///< where the parameter is declared (for error messages)
+};
+
+/// One axis of the scenario grid: a single parameter, or several zipped (taken together).
+struct SweepAxis {
+  std::vector<SweepParameter> parameters;  ///< all of the same length
+  [[nodiscard]] std::size_t size() const { return parameters.empty() ? 1 : parameters.front().values.size(); }
+};
+
+/// The scenarios of a study: the Cartesian product of the axes, first axis slowest (row-major).
+/// A scenario list file is a single zipped axis.
+struct SweepPlan {
+  std::vector<SweepAxis> axes;  ///< empty: one scenario, the file as written
+  bool from_list = false;       ///< scenarios came from a scenario list (CSV), not a grid
+
+  [[nodiscard]] std::size_t n_scenarios() const;
+  /// Axis sizes (the grid shape; {n} for a list).
+  [[nodiscard]] std::vector<std::size_t> shape() const;
+  /// Every swept parameter, in axis order.
+  [[nodiscard]] std::vector<const SweepParameter*> parameters() const;
+  /// (path, value) of every swept parameter in scenario i.
+  [[nodiscard]] std::vector<std::pair<std::string, double>> assignment(std::size_t i) const;
+};
+
+/// An experiment file with its sweep: yields the resolved Experiment of each scenario, and of the
+/// same scenario without aerosol (for aerosol radiative effects).
+class Study {
+ public:
+  /// Reads the file, validates the base experiment and the sweep section. Throws InputError.
+  static Study load(const std::filesystem::path& path);
+  /// As load, from text; `name` stands for the file, `base_dir` resolves relative paths.
+  static Study parse(std::string text, const std::string& name, const std::filesystem::path& base_dir);
+
+  Study(Study&&) noexcept;
+  Study& operator=(Study&&) noexcept;
+  ~Study();
+
+  [[nodiscard]] std::size_t size() const { return plan_.n_scenarios(); }
+  [[nodiscard]] const SweepPlan& plan() const { return plan_; }
+  /// The experiment as written (sweep values not applied).
+  [[nodiscard]] const Experiment& base() const { return base_; }
+  /// Scenario i, validated. Throws InputError pointing at the sweep entry of a bad value.
+  [[nodiscard]] Experiment scenario(std::size_t i) const;
+  /// Scenario i without its aerosol section.
+  [[nodiscard]] Experiment aerosol_free(std::size_t i) const;
+  /// Identifies the aerosol-free case of scenario i: equal keys, equal aerosol-free problems.
+  [[nodiscard]] std::string aerosol_free_key(std::size_t i) const;
+  /// Whether the study has an aerosol at all (then radiative effects are computed).
+  [[nodiscard]] bool has_aerosol() const;
+  /// Checks every scenario (throws InputError at the first bad one).
+  void validate_all() const;
+
+ private:
+  Study();
+  struct Impl;
+  std::unique_ptr<Impl> impl_;
+  Experiment base_;
+  SweepPlan plan_;
+};
+
+}  // namespace solstrata::experiment

@@ -1,0 +1,149 @@
+#include "experiment/sweep_run.hpp"
+
+#include <condition_variable>
+#include <deque>
+#include <exception>
+#include <future>
+#include <map>
+#include <mutex>
+#include <optional>
+#include <thread>
+
+namespace solstrata::experiment {
+namespace {
+
+AerosolEffect effect_of(const RunResult& with, const RunResult& without) {
+  AerosolEffect a;
+  const std::size_t s = with.n_levels - 1;
+  a.toa = with.net_down[0] - without.net_down[0];
+  a.surface = with.net_down[s] - without.net_down[s];
+  a.atmosphere = a.toa - a.surface;
+  return a;
+}
+
+/// Aerosol-free results, each computed once, shared between threads.
+class CleanCache {
+ public:
+  CleanCache(const Study& study, bool spectral) : study_(study), spectral_(spectral) {}
+
+  RunResult get(std::size_t scenario) {
+    const std::string key = study_.aerosol_free_key(scenario);
+    std::shared_future<RunResult> fut;
+    std::optional<std::promise<RunResult>> mine;
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      auto it = cache_.find(key);
+      if (it == cache_.end()) {
+        mine.emplace();
+        fut = mine->get_future().share();
+        cache_.emplace(key, fut);
+      } else {
+        fut = it->second;
+      }
+    }
+    if (mine) {
+      try {
+        Experiment e = study_.aerosol_free(scenario);
+        e.output.spectral = false;
+        mine->set_value(run_experiment(e));
+      } catch (...) {
+        mine->set_exception(std::current_exception());
+      }
+    }
+    (void)spectral_;
+    return fut.get();
+  }
+
+  [[nodiscard]] std::size_t distinct() {
+    std::lock_guard<std::mutex> lock(mutex_);
+    return cache_.size();
+  }
+
+ private:
+  const Study& study_;
+  bool spectral_;
+  std::mutex mutex_;
+  std::map<std::string, std::shared_future<RunResult>> cache_;
+};
+
+ScenarioResult solve_one(const Study& study, std::size_t i, bool spectral, CleanCache* clean) {
+  ScenarioResult out;
+  out.index = i;
+  Experiment e = study.scenario(i);
+  e.output.spectral = spectral;
+  out.result = run_experiment(e);
+  if (clean) out.effect = effect_of(out.result, clean->get(i));
+  return out;
+}
+
+}  // namespace
+
+ScenarioResult run_scenario(const Study& study, std::size_t index, bool spectral) {
+  CleanCache cache(study, spectral);
+  return solve_one(study, index, spectral, study.has_aerosol() ? &cache : nullptr);
+}
+
+std::size_t run_scenarios(const Study& study, const std::vector<std::size_t>& todo, const SweepOptions& options,
+                          const std::function<void(ScenarioResult&&)>& on_done) {
+  CleanCache cache(study, options.spectral);
+  CleanCache* clean = study.has_aerosol() ? &cache : nullptr;
+  std::atomic<std::size_t> next{0};
+  std::mutex m;
+  std::condition_variable cv;
+  std::deque<ScenarioResult> ready;
+  std::exception_ptr failure;
+  unsigned running = std::max(1u, options.threads);
+  const auto stopped = [&] { return options.stop && options.stop->load(); };
+
+  // Dynamic scheduling: each worker takes the next scenario when it is free, so both cores stay
+  // busy even when scenarios differ in cost.
+  const auto worker = [&] {
+    for (;;) {
+      if (stopped()) break;
+      {
+        std::lock_guard<std::mutex> lock(m);
+        if (failure) break;
+      }
+      const std::size_t k = next.fetch_add(1);
+      if (k >= todo.size()) break;
+      try {
+        ScenarioResult r = solve_one(study, todo[k], options.spectral, clean);
+        std::lock_guard<std::mutex> lock(m);
+        ready.push_back(std::move(r));
+      } catch (...) {
+        std::lock_guard<std::mutex> lock(m);
+        if (!failure) failure = std::current_exception();
+      }
+      cv.notify_one();
+    }
+    std::lock_guard<std::mutex> lock(m);
+    --running;
+    cv.notify_one();
+  };
+  std::vector<std::thread> pool;
+  for (unsigned t = 0; t < std::max(1u, options.threads); ++t) pool.emplace_back(worker);
+
+  std::size_t done = 0;
+  for (;;) {
+    std::unique_lock<std::mutex> lock(m);
+    cv.wait(lock, [&] { return !ready.empty() || running == 0; });
+    if (ready.empty() && running == 0) break;
+    ScenarioResult r = std::move(ready.front());
+    ready.pop_front();
+    lock.unlock();
+    if (!failure) {
+      try {
+        on_done(std::move(r));
+        ++done;
+      } catch (...) {
+        std::lock_guard<std::mutex> l2(m);
+        if (!failure) failure = std::current_exception();
+      }
+    }
+  }
+  for (std::thread& t : pool) t.join();
+  if (failure) std::rethrow_exception(failure);
+  return done;
+}
+
+}  // namespace solstrata::experiment

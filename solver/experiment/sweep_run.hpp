@@ -1,0 +1,51 @@
+// Running the scenarios of a study on worker threads, with aerosol radiative effects.
+#pragma once
+
+#include <atomic>
+#include <cstddef>
+#include <functional>
+#include <vector>
+
+#include "experiment/run.hpp"
+#include "experiment/sweep.hpp"
+
+namespace solstrata::experiment {
+
+/// Instantaneous aerosol radiative effect (W m-2): net downward flux with the aerosol minus the
+/// same scenario without it. Positive: the aerosol adds energy below that level (warming);
+/// negative: it removes energy (cooling). atmosphere = toa - surface (energy kept in the air).
+struct AerosolEffect {
+  double toa = 0.0;         ///< W m-2: at the top of the atmosphere
+  double surface = 0.0;     ///< W m-2: at the surface
+  double atmosphere = 0.0;  ///< W m-2: absorbed in the atmosphere
+};
+
+/// One finished scenario.
+struct ScenarioResult {
+  std::size_t index = 0;   ///< scenario number in the study
+  RunResult result;        ///< the scenario's products
+  AerosolEffect effect;    ///< zero when the study has no aerosol
+};
+
+/// How to run the scenarios.
+struct SweepOptions {
+  /// Worker threads, >= 1.
+  unsigned threads = 1;
+  /// Write per-bin fluxes (spectral output) for every scenario.
+  bool spectral = false;
+  /// Set (e.g. by a signal handler) to stop handing out scenarios; those in flight still finish.
+  const std::atomic<bool>* stop = nullptr;
+};
+
+/// Runs scenarios `todo` of `study` on `options.threads` threads. `on_done` is called on the
+/// calling thread for each finished scenario, in completion order (the results themselves do not
+/// depend on the thread count or order). The aerosol-free companion of each scenario is solved
+/// once per distinct aerosol-free case. Returns the number of scenarios finished (fewer than
+/// todo.size() only when stopped). Rethrows the first exception of a worker.
+std::size_t run_scenarios(const Study& study, const std::vector<std::size_t>& todo, const SweepOptions& options,
+                          const std::function<void(ScenarioResult&&)>& on_done);
+
+/// One scenario (and its aerosol-free companion when the study has aerosol), single-threaded.
+ScenarioResult run_scenario(const Study& study, std::size_t index, bool spectral);
+
+}  // namespace solstrata::experiment

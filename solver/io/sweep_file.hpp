@@ -1,0 +1,34 @@
+// The output of a sweep: records for the checkpoint, and the final HDF5 file built from them.
+#pragma once
+
+#include <cstdint>
+#include <filesystem>
+#include <vector>
+
+#include "experiment/sweep.hpp"
+#include "experiment/sweep_run.hpp"
+#include "io/checkpoint.hpp"
+
+namespace solstrata::io {
+
+/// The values of one scenario as a checkpoint record: every per-scenario numeric variable in
+/// result_fields order, then the three aerosol radiative effects when `with_effect`.
+std::vector<double> scenario_record(const experiment::ScenarioResult& s, bool with_effect);
+
+/// Hash identifying a sweep's output content: experiment text and content options.
+std::uint64_t experiment_hash(const std::string& text, bool spectral);
+
+/// Builds the sweep's HDF5 file at `path` (atomically) from the records of a complete checkpoint.
+/// `templ` is any scenario's result (layout, band table, spectral bins). A leading "scenario"
+/// dimension, one coordinate variable per swept parameter, the grid shape as attributes, and the
+/// aerosol radiative effects when the study has aerosol. Throws OutputError when a scenario is
+/// missing from the checkpoint.
+void write_sweep_file(const std::filesystem::path& path, const experiment::Study& study,
+                      const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
+                      const CheckpointContents& contents);
+
+/// Name of the coordinate variable of a swept parameter path ("aerosol.optical_depth" ->
+/// "aerosol_optical_depth").
+std::string sweep_variable_name(const std::string& path);
+
+}  // namespace solstrata::io
