@@ -289,6 +289,22 @@ TEST_CASE("a writer that fails or is abandoned leaves no file", "[io]") {
   }
 }
 
+TEST_CASE("a long multi-line text attribute, such as a whole experiment file, is kept", "[io]") {
+  // Attributes over 64 KiB do not fit HDF5's compact attribute storage; the file must switch to
+  // dense storage (it does, because attribute creation order is tracked).
+  TempDir dir("h5");
+  const auto path = dir / "provenance.h5";
+  std::string text;
+  for (int i = 0; text.size() < 100000; ++i) text += "key_" + std::to_string(i) + ": " + std::to_string(i * 0.5) + "\n";
+  {
+    Hdf5Writer w(path);
+    w.add_dimension("scenario", 1);
+    w.set_attribute("", "experiment_text", text);
+    w.commit();
+  }
+  CHECK(text_attribute(read_global_attributes(path), "experiment_text") == text);
+}
+
 TEST_CASE("misuse of the writer is reported with the file and variable", "[io]") {
   TempDir dir("h5");
   const auto path = dir / "bad.h5";
