@@ -172,7 +172,14 @@ Document Document::parse(std::string text, std::string name) {
     if (!docs.empty()) source->root = docs.front();
   } catch (const YAML::Exception& e) {
     const SourceMark m = to_mark(e.mark);
-    throw InputError(source->name, m, {}, "YAML syntax error: " + e.msg, line_of(*source, m.line));
+    const std::string line = line_of(*source, m.line);
+    std::string message = "YAML syntax error: " + e.msg;
+    // yaml-cpp's message for a tab in the indentation does not mention the tab.
+    const std::size_t indent_end = line.find_first_not_of(" \t");
+    if (line.substr(0, indent_end).find('\t') != std::string::npos) {
+      message += " (this line is indented with a tab; YAML allows only spaces)";
+    }
+    throw InputError(source->name, m, {}, message, line);
   }
   return Document(std::move(source));
 }

@@ -323,6 +323,14 @@ TEST_CASE("a YAML syntax error becomes an InputError at the parser's position", 
   CHECK_THAT(e2.message(), Catch::StartsWith("YAML syntax error"));
 }
 
+TEST_CASE("a tab in the indentation gets a hint", "[experiment]") {
+  const std::string text = "sun:\n\tcos_zenith: 0.5\n";
+  const InputError e = error_from(text, [](Section&) {});
+  CHECK(e.line() == 2);
+  CHECK_THAT(e.message(), Catch::Contains("YAML syntax error"));
+  CHECK_THAT(e.message(), Catch::Contains("indented with a tab; YAML allows only spaces"));
+}
+
 TEST_CASE("a document that is not a mapping is rejected", "[experiment]") {
   const std::string text = "- 1\n- 2\n";
   const InputError e = error_from(text, [](Section&) {});
