@@ -1,12 +1,12 @@
 #include "experiment/yaml_reader.hpp"
-
-#include <unistd.h>
-
 #include <catch2/catch.hpp>
+#include <algorithm>
 #include <filesystem>
 #include <fstream>
 #include <functional>
 #include <string>
+
+#include "support/temp_dir.hpp"
 
 using namespace solstrata::experiment;
 
@@ -59,13 +59,6 @@ void check_error(const InputError& e, SourceMark where, const std::string& key,
   const std::string caret = what.substr(caret_nl + 1);
   CHECK(source == "  " + e.source_line());
   CHECK(caret == std::string(static_cast<std::size_t>(1 + where.column), ' ') + "^");
-}
-
-std::filesystem::path temp_dir() {
-  const auto dir = std::filesystem::temp_directory_path() /
-                   ("solstrata_yaml_test_" + std::to_string(::getpid()));
-  std::filesystem::create_directories(dir);
-  return dir;
 }
 
 }  // namespace
@@ -381,7 +374,8 @@ TEST_CASE("tabs before the error column are kept so the caret lines up", "[exper
 }
 
 TEST_CASE("files are read from disk and a missing file is named", "[experiment]") {
-  const auto dir = temp_dir();
+  const solstrata::testing::TempDir scratch("yaml");
+  const auto& dir = scratch.path();
   const auto path = dir / "invented.yaml";
   {
     std::ofstream out(path);
@@ -409,5 +403,4 @@ TEST_CASE("files are read from disk and a missing file is named", "[experiment]"
     CHECK_THAT(std::string(e.what()), Catch::Contains("No such file"));
   }
   CHECK_THROWS_AS(Document::load_file(dir), InputError);
-  std::filesystem::remove_all(dir);
 }
