@@ -1,6 +1,7 @@
 #include "experiment/yaml_reader.hpp"
-#include <catch2/catch.hpp>
+
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <filesystem>
 #include <fstream>
 #include <functional>
