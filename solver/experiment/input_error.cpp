@@ -27,8 +27,8 @@ std::string render_input_error(const std::string& file, SourceMark mark,
   return out;
 }
 
-InputError::InputError(std::string file, SourceMark mark, std::string key_path,
-                       std::string message, std::string source_line)
+InputError::InputError(std::string file, SourceMark mark, std::string key_path, std::string message,
+                       std::string source_line)
     : std::runtime_error(render_input_error(file, mark, key_path, message, source_line)),
       file_(std::move(file)),
       mark_(mark),

@@ -1,5 +1,7 @@
 #include "experiment/yaml_reader.hpp"
 
+#include <yaml-cpp/yaml.h>
+
 #include <algorithm>
 #include <cctype>
 #include <cerrno>
@@ -94,8 +96,8 @@ NumberParse parse_double(const std::string& s, double& out) {
     // "1013.25 hPa", "550nm": a number followed by a unit name.
     std::string_view rest(ptr, static_cast<std::size_t>(last - ptr));
     while (!rest.empty() && rest.front() == ' ') rest.remove_prefix(1);
-    if (!rest.empty() && (std::isalpha(static_cast<unsigned char>(rest.front())) ||
-                          rest.front() == '%')) {
+    if (!rest.empty() &&
+        (std::isalpha(static_cast<unsigned char>(rest.front())) || rest.front() == '%')) {
       return NumberParse::has_unit;
     }
     return NumberParse::not_a_number;
@@ -172,7 +174,14 @@ Document Document::parse(std::string text, std::string name) {
     if (!docs.empty()) source->root = docs.front();
   } catch (const YAML::Exception& e) {
     const SourceMark m = to_mark(e.mark);
-    throw InputError(source->name, m, {}, "YAML syntax error: " + e.msg, line_of(*source, m.line));
+    const std::string line = line_of(*source, m.line);
+    std::string message = "YAML syntax error: " + e.msg;
+    // yaml-cpp's message for a tab in the indentation does not mention the tab.
+    const std::size_t indent_end = line.find_first_not_of(" \t");
+    if (line.substr(0, indent_end).find('\t') != std::string::npos) {
+      message += " (this line is indented with a tab; YAML allows only spaces)";
+    }
+    throw InputError(source->name, m, {}, message, line);
   }
   return Document(std::move(source));
 }
@@ -185,8 +194,9 @@ Section Document::root() const {
   }
   if (!root.IsMap()) {
     const SourceMark m = to_mark(root.Mark());
-    throw error(m, {}, "expected a mapping of keys to values at the top level, got " +
-                           describe_value(root));
+    throw error(
+        m, {},
+        "expected a mapping of keys to values at the top level, got " + describe_value(root));
   }
   return Section(source_, root, {}, SourceMark{1, 1});
 }
@@ -203,8 +213,14 @@ InputError Document::error(SourceMark mark, std::string key_path, std::string me
 // ---------------------------------------------------------------------------------------------
 // Section
 
-Section::Section(std::shared_ptr<const detail::Source> source, YAML::Node node, std::string path,
-                 SourceMark mark)
+struct Section::Entry {
+  std::string key;
+  SourceMark key_mark;
+  YAML::Node value;
+};
+
+Section::Section(std::shared_ptr<const detail::Source> source, const YAML::Node& node,
+                 std::string path, SourceMark mark)
     : source_(std::move(source)), path_(std::move(path)), mark_(mark) {
   for (const auto& pair : node) {
     const YAML::Node& k = pair.first;
@@ -293,8 +309,9 @@ Located<double> Section::read_number(const Entry& e, std::string_view key, Range
     throw error_at(m, path, "expected " + expected + ", got " + describe_value(e.value));
   }
   if (is_quoted(e.value)) {
-    throw error_at(m, path, "expected " + expected + ", got " + describe_value(e.value) +
-                                " (numbers are written without quotes)");
+    throw error_at(m, path,
+                   "expected " + expected + ", got " + describe_value(e.value) +
+                       " (numbers are written without quotes)");
   }
   double x = 0;
   switch (parse_double(e.value.Scalar(), x)) {
@@ -315,14 +332,14 @@ Located<double> Section::read_number(const Entry& e, std::string_view key, Range
       throw error_at(m, path, "expected " + expected + ", got " + describe_value(e.value));
   }
   if (!range.contains(x)) {
-    throw error_at(m, path, "expected " + with_unit(range.describe(last_name(path)), unit) +
-                                ", got " + format_number(x));
+    throw error_at(m, path,
+                   "expected " + with_unit(range.describe(last_name(path)), unit) + ", got " +
+                       format_number(x));
   }
   return {x, m, path};
 }
 
-Located<double> Section::required_number(std::string_view key, Range range,
-                                         std::string_view unit) {
+Located<double> Section::required_number(std::string_view key, Range range, std::string_view unit) {
   return read_number(*find_required(key), key, range, unit);
 }
 
@@ -411,15 +428,16 @@ Located<std::string> Section::optional_choice(std::string_view key, std::string 
   return choice(key, allowed);
 }
 
-LocatedNumbers Section::number_list(std::string_view key, Range element_range,
-                                    std::size_t min_size, std::string_view unit) {
+LocatedNumbers Section::number_list(std::string_view key, Range element_range, std::size_t min_size,
+                                    std::string_view unit) {
   const Entry& e = *find_required(key);
   LocatedNumbers out;
   out.key = key_path(key);
   out.mark = e.key_mark;
   if (!e.value.IsSequence()) {
     throw error_at(value_mark(e), out.key,
-                   "expected a list of numbers" + (unit.empty() ? "" : " (in " + std::string(unit) + ")") +
+                   "expected a list of numbers" +
+                       (unit.empty() ? "" : " (in " + std::string(unit) + ")") +
                        " such as [1, 2, 3], got " + describe_value(e.value));
   }
   if (e.value.size() < min_size) {
@@ -464,9 +482,9 @@ std::vector<Located<std::string>> Section::string_list(std::string_view key) {
 Section Section::subsection(std::string_view key) {
   const Entry& e = *find_required(key);
   if (!e.value.IsMap()) {
-    throw error_at(value_mark(e), key_path(key),
-                   "expected a mapping (indented 'key: value' lines), got " +
-                       describe_value(e.value));
+    throw error_at(
+        value_mark(e), key_path(key),
+        "expected a mapping (indented 'key: value' lines), got " + describe_value(e.value));
   }
   return Section(source_, e.value, key_path(key), e.key_mark);
 }
@@ -480,9 +498,9 @@ std::vector<Section> Section::sequence(std::string_view key, std::size_t min_siz
   const Entry& e = *find_required(key);
   const std::string path = key_path(key);
   if (!e.value.IsSequence()) {
-    throw error_at(value_mark(e), path,
-                   "expected a list of mappings ('- key: value' items), got " +
-                       describe_value(e.value));
+    throw error_at(
+        value_mark(e), path,
+        "expected a list of mappings ('- key: value' items), got " + describe_value(e.value));
   }
   if (e.value.size() < min_size) {
     throw error_at(e.key_mark, path,
@@ -495,7 +513,8 @@ std::vector<Section> Section::sequence(std::string_view key, std::size_t min_siz
     const std::string item_path = path + "[" + std::to_string(i++) + "]";
     const SourceMark m = to_mark(item.Mark()).known() ? to_mark(item.Mark()) : e.key_mark;
     if (!item.IsMap()) {
-      throw error_at(m, item_path, "expected a mapping ('key: value'), got " + describe_value(item));
+      throw error_at(m, item_path,
+                     "expected a mapping ('key: value'), got " + describe_value(item));
     }
     out.push_back(Section(source_, item, item_path, m));
   }

@@ -1,4 +1,4 @@
-// Typed, position-aware reading of YAML input files: the only module that includes yaml-cpp.
+// Typed, position-aware reading of YAML input files (yaml-cpp is used only in the .cpp).
 //
 // A Document owns the text of one file. Its root() is a Section: a YAML mapping read key by key
 // through typed accessors that check the type and range of each value and return it with the
@@ -16,9 +16,11 @@
 #include <string_view>
 #include <vector>
 
-#include <yaml-cpp/yaml.h>
-
 #include "experiment/input_error.hpp"
+
+namespace YAML {
+class Node;  // yaml-cpp stays out of this header: only yaml_reader.cpp includes it
+}
 
 namespace solstrata::experiment {
 
@@ -26,19 +28,19 @@ namespace solstrata::experiment {
 /// value is the default and mark.known() is false.
 template <class T>
 struct Located {
-  T value{};         ///< the value, in the unit its key documents
-  SourceMark mark;   ///< position of the value (of the key when the value is empty or not a scalar)
-  std::string key;   ///< key path, e.g. "aerosol.layers[2].omega"
+  T value{};        ///< the value, in the unit its key documents
+  SourceMark mark;  ///< position of the value (of the key when the value is empty or not a scalar)
+  std::string key;  ///< key path, e.g. "aerosol.layers[2].omega"
 
   [[nodiscard]] bool given() const { return mark.known(); }
 };
 
 /// A list of numbers with the position of the list and of each element.
 struct LocatedNumbers {
-  std::vector<double> values;       ///< the numbers, in the unit the key documents
-  std::vector<SourceMark> marks;    ///< position of each element (same length as values)
-  SourceMark mark;                  ///< position of the key that holds the list
-  std::string key;                  ///< key path of the list; element i is key + "[i]"
+  std::vector<double> values;     ///< the numbers, in the unit the key documents
+  std::vector<SourceMark> marks;  ///< position of each element (same length as values)
+  SourceMark mark;                ///< position of the key that holds the list
+  std::string key;                ///< key path of the list; element i is key + "[i]"
 
   /// Element i as a Located value (for later checks such as "levels must increase").
   [[nodiscard]] Located<double> at(std::size_t i) const {
@@ -49,10 +51,10 @@ struct LocatedNumbers {
 /// An interval of allowed numbers (dimensionless bounds in the unit of the key), each end
 /// inclusive or exclusive; unbounded by default.
 struct Range {
-  double low = -std::numeric_limits<double>::infinity();   ///< lower bound, in the key's unit
-  double high = std::numeric_limits<double>::infinity();   ///< upper bound, in the key's unit
-  bool low_inclusive = true;   ///< whether low itself is allowed
-  bool high_inclusive = true;  ///< whether high itself is allowed
+  double low = -std::numeric_limits<double>::infinity();  ///< lower bound, in the key's unit
+  double high = std::numeric_limits<double>::infinity();  ///< upper bound, in the key's unit
+  bool low_inclusive = true;                              ///< whether low itself is allowed
+  bool high_inclusive = true;                             ///< whether high itself is allowed
 
   /// low <= x <= high
   static Range closed(double low, double high) { return {low, high, true, true}; }
@@ -141,7 +143,8 @@ class Section {
   [[nodiscard]] SourceMark mark() const { return mark_; }
   /// The keys written in this section, in file order.
   [[nodiscard]] std::vector<std::string> keys() const;
-  /// Whether `key` is written (an empty value counts: reading it then fails). Records the key as known.
+  /// Whether `key` is written (an empty value counts: reading it then fails). Records the key as
+  /// known.
   [[nodiscard]] bool has(std::string_view key);
 
   /// A finite number within `range`. `unit` (e.g. "hPa") is only used in messages.
@@ -187,13 +190,9 @@ class Section {
 
  private:
   friend class Document;
-  struct Entry {
-    std::string key;
-    SourceMark key_mark;
-    YAML::Node value;
-  };
+  struct Entry;  // one key of the mapping, with its position and YAML value
 
-  Section(std::shared_ptr<const detail::Source> source, YAML::Node node, std::string path,
+  Section(std::shared_ptr<const detail::Source> source, const YAML::Node& node, std::string path,
           SourceMark mark);
   const Entry* find(std::string_view key);
   const Entry* find_required(std::string_view key);

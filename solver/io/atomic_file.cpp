@@ -1,12 +1,13 @@
 #include "io/atomic_file.hpp"
 
+#include <fcntl.h>
+#include <unistd.h>
+
 #include <atomic>
 #include <cerrno>
 #include <cstring>
-#include <fcntl.h>
 #include <string>
 #include <system_error>
-#include <unistd.h>
 #include <utility>
 
 namespace solstrata::io {
@@ -19,8 +20,8 @@ std::atomic<unsigned> temp_counter{0};
 void sync_file(const std::filesystem::path& p) {
   const int fd = ::open(p.c_str(), O_RDONLY | O_CLOEXEC);
   if (fd < 0) {
-    throw OutputError(p.string() + ": cannot open the finished file to flush it: " +
-                      std::strerror(errno));
+    throw OutputError(p.string() +
+                      ": cannot open the finished file to flush it: " + std::strerror(errno));
   }
   const int rc = ::fsync(fd);
   const int err = errno;
@@ -69,8 +70,8 @@ void AtomicOutput::commit() {
   sync_file(temp_);
   std::filesystem::rename(temp_, final_, ec);
   if (ec) {
-    throw OutputError(final_.string() + ": cannot move the finished file into place: " +
-                      ec.message());
+    throw OutputError(final_.string() +
+                      ": cannot move the finished file into place: " + ec.message());
   }
   committed_ = true;
 }

@@ -95,7 +95,8 @@ StoredVariable read_variable(const std::filesystem::path& file, const std::strin
     const auto count = static_cast<std::size_t>(space.getSimpleExtentNpoints());
     if (ds.getTypeClass() == H5T_STRING) {
       const H5::StrType type = ds.getStrType();
-      if (!type.isVariableStr()) throw OutputError(file.string() + ": " + name + ": fixed-length text is not supported");
+      if (!type.isVariableStr())
+        throw OutputError(file.string() + ": " + name + ": fixed-length text is not supported");
       std::vector<char*> pointers(count, nullptr);
       ds.read(pointers.data(), type);
       for (char* p : pointers) out.texts.emplace_back(p == nullptr ? "" : p);

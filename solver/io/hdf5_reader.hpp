@@ -15,10 +15,10 @@ using AttributeValue = std::variant<std::string, std::vector<double>>;
 
 /// One variable as stored.
 struct StoredVariable {
-  std::vector<std::string> dimensions;   ///< names of the attached dimension scales, in order
-  std::vector<std::size_t> shape;        ///< extent along each dimension (points)
-  std::vector<double> values;            ///< numeric contents in C order (empty for text)
-  std::vector<std::string> texts;        ///< text contents in C order (empty for numbers)
+  std::vector<std::string> dimensions;  ///< names of the attached dimension scales, in order
+  std::vector<std::size_t> shape;       ///< extent along each dimension (points)
+  std::vector<double> values;           ///< numeric contents in C order (empty for text)
+  std::vector<std::string> texts;       ///< text contents in C order (empty for numbers)
   std::map<std::string, AttributeValue> attributes;  ///< text and numeric attributes by name
 };
 

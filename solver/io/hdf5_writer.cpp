@@ -208,8 +208,8 @@ struct Hdf5Writer::Impl {
   }
 
   template <class T>
-  static void write_numbers(H5::H5Object& object, const std::string& name,
-                            const H5::PredType& type, std::span<const T> values) {
+  static void write_numbers(H5::H5Object& object, const std::string& name, const H5::PredType& type,
+                            std::span<const T> values) {
     if (object.attrExists(name)) object.removeAttr(name);
     const hsize_t n = values.size();
     H5::Attribute attr = object.createAttribute(name, type, H5::DataSpace(1, &n));
@@ -226,9 +226,8 @@ struct Hdf5Writer::Impl {
     if (std::find(names.begin(), names.end(), variable) == names.end()) {
       fail(variable, "no such variable (write it before its attributes)");
     }
-    if (std::any_of(dimensions.begin(), dimensions.end(), [&](const Dimension& d) {
-          return d.name == variable && !d.coordinate;
-        })) {
+    if (std::any_of(dimensions.begin(), dimensions.end(),
+                    [&](const Dimension& d) { return d.name == variable && !d.coordinate; })) {
       fail(variable, "is a dimension without coordinate values, which has no attributes");
     }
     H5::DataSet ds = file->openDataSet(variable);
@@ -236,7 +235,8 @@ struct Hdf5Writer::Impl {
   }
 
   void check_attribute_name(const std::string& variable, const std::string& name) const {
-    if (!valid_name(name, false) && !(name.size() > 1 && name[0] == '_' && valid_name(name.substr(1), false))) {
+    if (!valid_name(name, false) &&
+        !(name.size() > 1 && name[0] == '_' && valid_name(name.substr(1), false))) {
       fail(variable, "invalid attribute name '" + name + "'");
     }
     if (reserved_attribute(name)) {
@@ -252,8 +252,9 @@ struct Hdf5Writer::Impl {
     const std::vector<hsize_t> shape = extent(name, idx, count);
     claim_name(name);
     guarded(name, "write the variable", [&] {
-      H5::DataSpace space = shape.empty() ? H5::DataSpace(H5S_SCALAR)
-                                          : H5::DataSpace(static_cast<int>(shape.size()), shape.data());
+      H5::DataSpace space = shape.empty()
+                                ? H5::DataSpace(H5S_SCALAR)
+                                : H5::DataSpace(static_cast<int>(shape.size()), shape.data());
       H5::DataSet ds = file->createDataSet(name, type, space, creation_list());
       ds.write(data, type);
       attach_scales(ds, name, idx);
@@ -353,14 +354,14 @@ std::size_t Hdf5Writer::dimension_size(const std::string& name) const {
 void Hdf5Writer::write(const std::string& name, const std::vector<std::string>& dimensions,
                        std::span<const double> values, const VariableAttributes& attributes) {
   Impl::check_finite(*impl_, name, values);
-  impl_->write_fixed(name, dimensions, H5::PredType::NATIVE_DOUBLE, values.data(),
-                             values.size(), attributes, true);
+  impl_->write_fixed(name, dimensions, H5::PredType::NATIVE_DOUBLE, values.data(), values.size(),
+                     attributes, true);
 }
 
 void Hdf5Writer::write(const std::string& name, const std::vector<std::string>& dimensions,
                        std::span<const int> values, const VariableAttributes& attributes) {
-  impl_->write_fixed(name, dimensions, H5::PredType::NATIVE_INT, values.data(),
-                          values.size(), attributes, true);
+  impl_->write_fixed(name, dimensions, H5::PredType::NATIVE_INT, values.data(), values.size(),
+                     attributes, true);
 }
 
 void Hdf5Writer::write(const std::string& name, const std::vector<std::string>& dimensions,
@@ -368,8 +369,7 @@ void Hdf5Writer::write(const std::string& name, const std::vector<std::string>& 
   std::vector<const char*> pointers;
   for (const std::string& s : values) pointers.push_back(s.c_str());
   const H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
-  impl_->write_fixed(name, dimensions, type, pointers.data(), pointers.size(),
-                                  attributes, false);
+  impl_->write_fixed(name, dimensions, type, pointers.data(), pointers.size(), attributes, false);
 }
 
 void Hdf5Writer::define_rows(const std::string& name, const std::vector<std::string>& dimensions,
@@ -460,8 +460,7 @@ void Hdf5Writer::set_attribute(const std::string& variable, const std::string& n
   });
 }
 
-void Hdf5Writer::set_attribute(const std::string& variable, const std::string& name,
-                               double value) {
+void Hdf5Writer::set_attribute(const std::string& variable, const std::string& name, double value) {
   set_attribute(variable, name, std::span<const double>(&value, 1));
 }
 

@@ -1,11 +1,13 @@
 #include "experiment/yaml_reader.hpp"
 
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <filesystem>
 #include <fstream>
 #include <functional>
 #include <string>
-#include <unistd.h>
+
+#include "support/temp_dir.hpp"
 
 using namespace solstrata::experiment;
 
@@ -17,7 +19,8 @@ SourceMark position_of(const std::string& text, const std::string& needle) {
   const std::size_t at = text.find(needle);
   REQUIRE(at != std::string::npos);
   const std::size_t line_start = text.rfind('\n', at == 0 ? 0 : at - 1);
-  const int line = 1 + static_cast<int>(std::count(text.begin(), text.begin() + static_cast<long>(at), '\n'));
+  const int line =
+      1 + static_cast<int>(std::count(text.begin(), text.begin() + static_cast<long>(at), '\n'));
   const std::size_t col0 = (line_start == std::string::npos || at == 0) ? at : at - line_start - 1;
   return {line, static_cast<int>(col0) + 1};
 }
@@ -45,8 +48,8 @@ void check_error(const InputError& e, SourceMark where, const std::string& key,
   for (const std::string& part : message_parts) CHECK_THAT(e.message(), Catch::Contains(part));
   const std::string what = e.what();
   const std::string head = "exp.yaml:" + std::to_string(where.line) + ":" +
-                           std::to_string(where.column) + ": error: " +
-                           (key.empty() ? "" : key + ": ") + e.message();
+                           std::to_string(where.column) +
+                           ": error: " + (key.empty() ? "" : key + ": ") + e.message();
   CHECK(what.rfind(head, 0) == 0);
   // Last two lines: "  <source line>" and "  <spaces>^" with the caret under the column.
   const std::size_t caret_nl = what.rfind('\n');
@@ -57,13 +60,6 @@ void check_error(const InputError& e, SourceMark where, const std::string& key,
   const std::string caret = what.substr(caret_nl + 1);
   CHECK(source == "  " + e.source_line());
   CHECK(caret == std::string(static_cast<std::size_t>(1 + where.column), ' ') + "^");
-}
-
-std::filesystem::path temp_dir() {
-  const auto dir = std::filesystem::temp_directory_path() /
-                   ("solstrata_yaml_test_" + std::to_string(::getpid()));
-  std::filesystem::create_directories(dir);
-  return dir;
 }
 
 }  // namespace
@@ -116,9 +112,9 @@ TEST_CASE("a well-formed section reads with values and positions", "[experiment]
   CHECK_NOTHROW(root.check_no_unknown_keys());
 }
 
-
 TEST_CASE("a value outside an inclusive range names the rule and the value", "[experiment]") {
-  const std::string text = "aerosol:\n  layers:\n    - omega: 0.9\n    - omega: 0.95\n    - omega: 1.3\n";
+  const std::string text =
+      "aerosol:\n  layers:\n    - omega: 0.9\n    - omega: 0.95\n    - omega: 1.3\n";
   const InputError e = error_from(text, [](Section& root) {
     for (Section& layer : root.subsection("aerosol").sequence("layers")) {
       layer.required_number("omega", Range::closed(0, 1));
@@ -136,7 +132,8 @@ TEST_CASE("an exclusive bound is rendered with '<'", "[experiment]") {
   const InputError e = error_from(text, [](Section& root) {
     root.subsection("sun").required_number("cos_zenith", Range::open_closed(0, 1));
   });
-  check_error(e, position_of(text, "0\n"), "sun.cos_zenith", {"expected 0 < cos_zenith <= 1, got 0"});
+  check_error(e, position_of(text, "0\n"), "sun.cos_zenith",
+              {"expected 0 < cos_zenith <= 1, got 0"});
 }
 
 TEST_CASE("a one-sided range with a unit is rendered with the unit", "[experiment]") {
@@ -150,9 +147,8 @@ TEST_CASE("a one-sided range with a unit is rendered with the unit", "[experimen
 
 TEST_CASE("text where a number is expected is a type error naming the unit", "[experiment]") {
   const std::string text = "title: x\nozone: lots\n";
-  const InputError e = error_from(text, [](Section& root) {
-    root.required_number("ozone", Range::at_least(0), "DU");
-  });
+  const InputError e = error_from(
+      text, [](Section& root) { root.required_number("ozone", Range::at_least(0), "DU"); });
   check_error(e, position_of(text, "lots"), "ozone", {"expected a number (in DU)", "got 'lots'"});
 }
 
@@ -187,23 +183,23 @@ TEST_CASE("a list where a mapping is expected is a type error", "[experiment]") 
 TEST_CASE("a mapping where a list is expected is a type error", "[experiment]") {
   const std::string text = "levels:\n  top: 1\n";
   const InputError e = error_from(text, [](Section& root) { root.number_list("levels"); });
-  check_error(e, position_of(text, "levels"), "levels", {"expected a list of numbers", "got a mapping"});
+  check_error(e, position_of(text, "levels"), "levels",
+              {"expected a list of numbers", "got a mapping"});
 }
 
 TEST_CASE("a bad list element is reported at the element with its index", "[experiment]") {
   const std::string text = "levels: [1000, 850, abc, 300]\n";
-  const InputError e = error_from(text, [](Section& root) {
-    root.number_list("levels", Range::greater_than(0), 1, "hPa");
-  });
+  const InputError e = error_from(
+      text, [](Section& root) { root.number_list("levels", Range::greater_than(0), 1, "hPa"); });
   check_error(e, position_of(text, "abc"), "levels[2]", {"expected a number (in hPa), got 'abc'"});
 }
 
 TEST_CASE("an element out of range in a block list is reported on its own line", "[experiment]") {
   const std::string text = "levels:\n  - 1000\n  - -850\n";
-  const InputError e = error_from(text, [](Section& root) {
-    root.number_list("levels", Range::greater_than(0), 1, "hPa");
-  });
-  check_error(e, position_of(text, "-850"), "levels[1]", {"expected levels[1] > 0 (in hPa), got -850"});
+  const InputError e = error_from(
+      text, [](Section& root) { root.number_list("levels", Range::greater_than(0), 1, "hPa"); });
+  check_error(e, position_of(text, "-850"), "levels[1]",
+              {"expected levels[1] > 0 (in hPa), got -850"});
 }
 
 TEST_CASE("a list that is too short says how many were expected", "[experiment]") {
@@ -258,14 +254,16 @@ TEST_CASE("a misspelt choice lists the allowed values and suggests one", "[exper
 TEST_CASE("not-a-number and infinity are rejected", "[experiment]") {
   for (const std::string value : {".nan", ".inf", "-.inf", "nan", "inf", "-infinity"}) {
     const std::string text = "optical_depth: " + value + "\n";
-    const InputError e = error_from(text, [](Section& root) { root.required_number("optical_depth"); });
+    const InputError e =
+        error_from(text, [](Section& root) { root.required_number("optical_depth"); });
     check_error(e, {1, 16}, "optical_depth", {"expected a finite number"});
   }
 }
 
 TEST_CASE("a number beyond double precision is rejected", "[experiment]") {
   const std::string text = "optical_depth: 1e999\n";
-  const InputError e = error_from(text, [](Section& root) { root.required_number("optical_depth"); });
+  const InputError e =
+      error_from(text, [](Section& root) { root.required_number("optical_depth"); });
   check_error(e, {1, 16}, "optical_depth", {"within the range of double precision"});
 }
 
@@ -279,15 +277,15 @@ TEST_CASE("a fraction where a whole number is expected is rejected", "[experimen
   const InputError e_huge = error_from(huge, [](Section& root) { root.required_integer("count"); });
   check_error(e_huge, position_of(huge, "1e300"), "count", {"expected a whole number, got 1e+300"});
   const std::string text0 = "threads: 0\n";
-  const InputError e0 = error_from(text0, [](Section& root) {
-    root.required_integer("threads", Range::at_least(1));
-  });
+  const InputError e0 = error_from(
+      text0, [](Section& root) { root.required_integer("threads", Range::at_least(1)); });
   check_error(e0, position_of(text0, "0"), "threads", {"expected threads >= 1, got 0"});
 }
 
 TEST_CASE("only true and false are booleans", "[experiment]") {
   const std::string text = "write_layers: yes\n";
-  const InputError e = error_from(text, [](Section& root) { root.optional_bool("write_layers", false); });
+  const InputError e =
+      error_from(text, [](Section& root) { root.optional_bool("write_layers", false); });
   check_error(e, position_of(text, "yes"), "write_layers", {"expected true or false, got 'yes'"});
 }
 
@@ -323,6 +321,14 @@ TEST_CASE("a YAML syntax error becomes an InputError at the parser's position", 
   CHECK_THAT(e2.message(), Catch::StartsWith("YAML syntax error"));
 }
 
+TEST_CASE("a tab in the indentation gets a hint", "[experiment]") {
+  const std::string text = "sun:\n\tcos_zenith: 0.5\n";
+  const InputError e = error_from(text, [](Section&) {});
+  CHECK(e.line() == 2);
+  CHECK_THAT(e.message(), Catch::Contains("YAML syntax error"));
+  CHECK_THAT(e.message(), Catch::Contains("indented with a tab; YAML allows only spaces"));
+}
+
 TEST_CASE("a document that is not a mapping is rejected", "[experiment]") {
   const std::string text = "- 1\n- 2\n";
   const InputError e = error_from(text, [](Section&) {});
@@ -332,7 +338,8 @@ TEST_CASE("a document that is not a mapping is rejected", "[experiment]") {
     FAIL("an empty document was accepted");
   } catch (const InputError& empty) {
     CHECK(empty.line() == 0);
-    CHECK(std::string(empty.what()) == "exp.yaml: error: the file has no content; expected a mapping of keys to values");
+    CHECK(std::string(empty.what()) ==
+          "exp.yaml: error: the file has no content; expected a mapping of keys to values");
   }
 }
 
@@ -350,7 +357,10 @@ TEST_CASE("checks after reading can point at a value that was read", "[experimen
   const LocatedNumbers levels = root.number_list("levels");
   std::size_t bad = 0;
   for (std::size_t i = 1; i < levels.values.size(); ++i) {
-    if (levels.values[i] >= levels.values[i - 1]) { bad = i; break; }
+    if (levels.values[i] >= levels.values[i - 1]) {
+      bad = i;
+      break;
+    }
   }
   REQUIRE(bad == 2);
   const InputError e = doc.error(levels.at(bad), "pressures must decrease from the surface up");
@@ -365,7 +375,8 @@ TEST_CASE("tabs before the error column are kept so the caret lines up", "[exper
 }
 
 TEST_CASE("files are read from disk and a missing file is named", "[experiment]") {
-  const auto dir = temp_dir();
+  const solstrata::testing::TempDir scratch("yaml");
+  const auto& dir = scratch.path();
   const auto path = dir / "invented.yaml";
   {
     std::ofstream out(path);
@@ -388,9 +399,9 @@ TEST_CASE("files are read from disk and a missing file is named", "[experiment]"
   } catch (const InputError& e) {
     CHECK(e.file() == missing.string());
     CHECK(e.line() == 0);
-    CHECK_THAT(std::string(e.what()), Catch::StartsWith(missing.string() + ": error: cannot open the file"));
+    CHECK_THAT(std::string(e.what()),
+               Catch::StartsWith(missing.string() + ": error: cannot open the file"));
     CHECK_THAT(std::string(e.what()), Catch::Contains("No such file"));
   }
   CHECK_THROWS_AS(Document::load_file(dir), InputError);
-  std::filesystem::remove_all(dir);
 }

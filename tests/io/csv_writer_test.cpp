@@ -38,7 +38,8 @@ TEST_CASE("a table has a header, equal-length rows and LF line ends", "[io]") {
   CHECK(table.rows() == 2);
   CHECK(table.to_string() ==
         "scenario,note,flux_W_m-2\n\"clear, dry\",\"said \"\"hello\"\"\",900.5\n1,2,3\n");
-  CHECK_THROWS_WITH(table.add_row({"only one"}), Catch::Contains("row 3 has 1 cells, the header has 3"));
+  CHECK_THROWS_WITH(table.add_row({"only one"}),
+                    Catch::Contains("row 3 has 1 cells, the header has 3"));
   CHECK_THROWS_AS(CsvTable({}), OutputError);
 }
 
@@ -57,9 +58,11 @@ TEST_CASE("a table written to disk is read back by Python's csv module", "[io]")
   }
   // Python's csv module is an independent RFC 4180 reader; repr() shows each cell exactly.
   const auto result = solstrata::testing::run_command(
-      "python3 -c \"import csv,sys; print([r for r in csv.reader(open(sys.argv[1], newline=''))])\" " +
+      "python3 -c \"import csv,sys; print([r for r in csv.reader(open(sys.argv[1], "
+      "newline=''))])\" " +
       path.string());
   REQUIRE(result.status == 0);
   CHECK(result.output ==
-        "[['name', 'value'], ['comma, inside', '1'], ['quote \" inside', '2'], ['new\\nline', '3']]\n");
+        "[['name', 'value'], ['comma, inside', '1'], ['quote \" inside', '2'], ['new\\nline', "
+        "'3']]\n");
 }

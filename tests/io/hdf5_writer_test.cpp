@@ -20,7 +20,7 @@ namespace {
 const std::vector<double> kLevelPressure = {100.0, 500.0, 1000.0};     // hPa
 const std::vector<double> kBandCentre = {400.0, 550.0};                // nm
 const std::vector<double> kFluxDown = {1.5, 2.5, 3.5, 4.5, 5.5, 6.5};  // W m-2, [band][level]
-const std::vector<double> kOpticalDepth = {0.1, 0.2, 0.3, 0.4};         // 1, [band][layer]
+const std::vector<double> kOpticalDepth = {0.1, 0.2, 0.3, 0.4};        // 1, [band][layer]
 const std::vector<int> kLayerIndex = {0, 1};
 const std::vector<std::string> kBandName = {"blue", "green, with comma"};
 
@@ -65,8 +65,8 @@ TEST_CASE("variables and attributes read back with their dimensions", "[io]") {
 
   // Creation order is kept (netCDF-4 tracks it), so ncdump lists in the order written.
   CHECK(list_datasets(path) == std::vector<std::string>{"level", "layer", "band", "flux_down",
-                                                         "optical_depth", "layer_index",
-                                                         "band_name", "cos_zenith"});
+                                                        "optical_depth", "layer_index", "band_name",
+                                                        "cos_zenith"});
   const StoredVariable flux = read_variable(path, "flux_down");
   CHECK(flux.dimensions == std::vector<std::string>{"band", "level"});
   CHECK(flux.shape == std::vector<std::size_t>{2, 3});
@@ -190,9 +190,11 @@ TEST_CASE("h5py sees the dimension scales of each variable", "[io]") {
   const auto path = dir / "example.h5";
   write_example(path);
   const auto result = solstrata::testing::run_command(
-      python + " -c \"import h5py,sys; f=h5py.File(sys.argv[1],'r'); v=f['flux_down']; "
-               "print([list(d.keys()) for d in v.dims], v.attrs['units'].decode(), "
-               "h5py.h5ds.is_scale(f['layer'].id), list(f['level'][:]))\" " + path.string());
+      python +
+      " -c \"import h5py,sys; f=h5py.File(sys.argv[1],'r'); v=f['flux_down']; "
+      "print([list(d.keys()) for d in v.dims], v.attrs['units'].decode(), "
+      "h5py.h5ds.is_scale(f['layer'].id), list(f['level'][:]))\" " +
+      path.string());
   INFO(result.output);
   REQUIRE(result.status == 0);
   CHECK(result.output == "[['band'], ['level']] W m-2 True [100.0, 500.0, 1000.0]\n");
@@ -266,7 +268,10 @@ TEST_CASE("a writer that fails or is abandoned leaves no file", "[io]") {
     CHECK(dir.files().empty());
   }
   SECTION("destroyed without commit") {
-    { Hdf5Writer w(path); w.add_dimension("band", 2); }
+    {
+      Hdf5Writer w(path);
+      w.add_dimension("band", 2);
+    }
     CHECK(dir.files().empty());
   }
   SECTION("an existing file survives a failed rewrite and is replaced by a committed one") {
@@ -287,6 +292,23 @@ TEST_CASE("a writer that fails or is abandoned leaves no file", "[io]") {
     }
     CHECK(list_datasets(path) == std::vector<std::string>{"band", "flux"});
   }
+}
+
+TEST_CASE("a long multi-line text attribute, such as a whole experiment file, is kept", "[io]") {
+  // Attributes over 64 KiB do not fit HDF5's compact attribute storage; the file must switch to
+  // dense storage (it does, because attribute creation order is tracked).
+  TempDir dir("h5");
+  const auto path = dir / "provenance.h5";
+  std::string text;
+  for (int i = 0; text.size() < 100000; ++i)
+    text += "key_" + std::to_string(i) + ": " + std::to_string(i * 0.5) + "\n";
+  {
+    Hdf5Writer w(path);
+    w.add_dimension("scenario", 1);
+    w.set_attribute("", "experiment_text", text);
+    w.commit();
+  }
+  CHECK(text_attribute(read_global_attributes(path), "experiment_text") == text);
 }
 
 TEST_CASE("misuse of the writer is reported with the file and variable", "[io]") {
@@ -317,7 +339,8 @@ TEST_CASE("misuse of the writer is reported with the file and variable", "[io]")
   CHECK_THROWS_WITH(w.set_attribute("missing", "note", "x"), Catch::Contains("no such variable"));
   CHECK_THROWS_WITH(w.set_attribute("band", "note", "x"),
                     Catch::Contains("dimension without coordinate values"));
-  CHECK_THROWS_WITH(w.set_attribute("", "bad name", "x"), Catch::Contains("invalid attribute name"));
+  CHECK_THROWS_WITH(w.set_attribute("", "bad name", "x"),
+                    Catch::Contains("invalid attribute name"));
   CHECK_THROWS_AS(read_variable(dir / "absent.h5", "x"), OutputError);
   w.commit();
   CHECK_THROWS_WITH(w.add_dimension("late", 1), Catch::Contains("writer is closed"));

@@ -1,12 +1,13 @@
 // Test helpers: a scratch directory removed at the end of a test, and running a shell command.
 #pragma once
 
+#include <sys/wait.h>
+#include <unistd.h>
+
 #include <array>
 #include <cstdio>
 #include <filesystem>
 #include <string>
-#include <sys/wait.h>
-#include <unistd.h>
 
 namespace solstrata::testing {
 
@@ -15,8 +16,9 @@ class TempDir {
  public:
   explicit TempDir(const std::string& tag) {
     static int counter = 0;
-    path_ = std::filesystem::temp_directory_path() /
-            ("solstrata_" + tag + "_" + std::to_string(::getpid()) + "_" + std::to_string(counter++));
+    path_ =
+        std::filesystem::temp_directory_path() /
+        ("solstrata_" + tag + "_" + std::to_string(::getpid()) + "_" + std::to_string(counter++));
     std::filesystem::remove_all(path_);
     std::filesystem::create_directories(path_);
   }
@@ -28,7 +30,9 @@ class TempDir {
   TempDir& operator=(const TempDir&) = delete;
 
   [[nodiscard]] const std::filesystem::path& path() const { return path_; }
-  [[nodiscard]] std::filesystem::path operator/(const std::string& name) const { return path_ / name; }
+  [[nodiscard]] std::filesystem::path operator/(const std::string& name) const {
+    return path_ / name;
+  }
   /// Names of the files in the directory.
   [[nodiscard]] std::vector<std::string> files() const {
     std::vector<std::string> out;
@@ -54,7 +58,8 @@ inline CommandResult run_command(const std::string& command) {
   if (pipe == nullptr) return result;
   std::array<char, 4096> buffer{};
   std::size_t n = 0;
-  while ((n = std::fread(buffer.data(), 1, buffer.size(), pipe)) > 0) result.output.append(buffer.data(), n);
+  while ((n = std::fread(buffer.data(), 1, buffer.size(), pipe)) > 0)
+    result.output.append(buffer.data(), n);
   const int raw = ::pclose(pipe);
   result.status = (raw != -1 && WIFEXITED(raw)) ? WEXITSTATUS(raw) : -1;
   return result;
