@@ -37,12 +37,19 @@ std::string lower(std::string_view s) {
 
 std::string closest_name(std::string_view name, std::span<const std::string> candidates) {
   const std::string key = lower(name);
-  const std::size_t limit = key.size() <= 4 ? 1 : key.size() <= 8 ? 2 : 3;
   std::string best;
-  std::size_t best_distance = limit + 1;
+  std::size_t best_distance = static_cast<std::size_t>(-1);
   for (const std::string& candidate : candidates) {
-    const std::size_t d = edit_distance(key, lower(candidate));
-    if (d < best_distance) {
+    const std::string c = lower(candidate);
+    // Allowed edits grow with the longer name (1 up to 4 characters, 2 up to 8, then a quarter of
+    // the length, at least 3); a name that is a prefix of at least 4 characters of the other (a
+    // unit suffix left off, an abbreviation) counts as close too.
+    const std::size_t longer = std::max(key.size(), c.size());
+    const std::size_t limit = longer <= 4 ? 1 : longer <= 8 ? 2 : std::max<std::size_t>(3, longer / 4);
+    const bool prefix = std::min(key.size(), c.size()) >= 4 &&
+                        (c.compare(0, key.size(), key) == 0 || key.compare(0, c.size(), c) == 0);
+    const std::size_t d = edit_distance(key, c);
+    if ((d <= limit || prefix) && d < best_distance) {
       best_distance = d;
       best = candidate;
     }

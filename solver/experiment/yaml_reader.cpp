@@ -273,6 +273,17 @@ const Section::Entry* Section::find(std::string_view key) {
 const Section::Entry* Section::find_required(std::string_view key) {
   const Entry* e = find(key);
   if (e != nullptr) return e;
+  // A misspelt key is the usual cause: point at the written key that is closest to the missing
+  // one and is not a key this section knows, with a suggestion.
+  for (const Entry& written : entries_) {
+    if (std::find(known_.begin(), known_.end(), written.key) != known_.end()) continue;
+    const std::string want(key);
+    if (closest_name(written.key, std::span<const std::string>(&want, 1)) == want) {
+      throw error_at(written.key_mark, key_path(written.key),
+                     "unknown key '" + written.key + "' (did you mean '" + want + "'?); required key '" + want +
+                         "' is missing" + (path_.empty() ? std::string() : " in '" + path_ + "'"));
+    }
+  }
   throw error_at(mark_, path_.empty() ? std::string(key) : key_path(key),
                  "required key '" + std::string(key) + "' is missing" +
                      (path_.empty() ? std::string() : " in '" + path_ + "'"));
