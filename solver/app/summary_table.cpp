@@ -39,7 +39,6 @@ void print_check_summary(std::ostream& os, const experiment::Experiment& e) {
   }
   os << "  sun:         solar zenith " << fmt("%g deg", e.solar_zenith_deg) << "\n";
   os << "  closure:     " << rt::to_string(e.closure) << "\n";
-  os << "  scenarios:   1\n";
   os << "  output:      " << e.output.file.string() << (e.output.spectral ? " (with spectral fluxes)" : "") << "\n";
 }
 

@@ -227,7 +227,10 @@ Study Study::parse(std::string text, const std::string& name, const fs::path& ba
       s.plan_.axes.push_back(std::move(axis));
       s.plan_.from_list = true;
     } else {
-      if (!sw.has("grid") && !sw.has("zip")) throw sw.error("grid", "a sweep needs 'grid' axes, 'zip' lists or a 'scenario_file'");
+      if (!sw.has("grid") && !sw.has("zip")) {
+        sw.check_no_unknown_keys();  // a misspelt 'grid' is the likely cause
+        throw sw.error("grid", "a sweep needs 'grid' axes, 'zip' lists or a 'scenario_file'");
+      }
       if (sw.has("grid")) {
         for (Section& item : sw.sequence("grid")) s.plan_.axes.push_back({{read_parameter(item)}});
       }
