@@ -368,6 +368,61 @@ TEST_CASE("reference conserves energy to 1e-10 when omega is 1", "[rt][reference
   CHECK(worst <= 1e-10);
 }
 
+TEST_CASE("near-conservative layers absorb in proportion to 1 - omega", "[rt][reference]") {
+  // Exact limit: for a finite layer, absorptance = (1 - omega) * (mean photon path) + O((1 - omega)^2),
+  // so A / (1 - omega) tends to a constant as omega -> 1 (first-order perturbation; common
+  // practice). Checks that nothing breaks between omega = 1 - 1e-4 and the exact omega = 1 branch.
+  for (int streams : {8, 32}) {
+    const auto absorptance = [&](double co) {
+      const Column c = reference({{10.0, 1.0 - co, 0.7}}, 0.5, 0.0, 0.0, streams);
+      return 1.0 - c.reflectance() - c.transmittance();
+    };
+    const double slope = absorptance(1e-10) / 1e-10;
+    INFO("streams " << streams << " A/(1 - omega) at 1e-10 " << slope << ", at 1e-7 "
+                    << absorptance(1e-7) / 1e-7 << ", at 1e-12 " << absorptance(1e-12) / 1e-12);
+    CHECK(absorptance(1e-7) / 1e-7 == Approx(slope).epsilon(1e-4));
+    CHECK(absorptance(1e-12) / 1e-12 == Approx(slope).epsilon(0.05));  // round-off ~ 1e-14 absolute
+    CHECK(std::abs(absorptance(0.0)) < 1e-13);
+  }
+}
+
+TEST_CASE("reference with and without delta-M converges to the same answer", "[rt][reference]") {
+  // Delta-M (Wiscombe 1977) changes only how fast the stream count converges, not the limit.
+  const std::vector<Layer> col = {{0.4, 0.95, 0.8}, {1.5, 0.85, 0.6}};
+  const Column a = reference(col, 0.4, 0.25, 0.2, 64, true);
+  const Column b = reference(col, 0.4, 0.25, 0.2, 64, false);
+  for (std::size_t l = 0; l < a.up.size(); ++l) {
+    INFO("level " << l);
+    CHECK(a.up[l] == Approx(b.up[l]).margin(1e-7));
+    CHECK(a.dif[l] == Approx(b.dif[l]).margin(1e-7));
+  }
+}
+
+TEST_CASE("reference over a Lambertian surface matches the exact surface-adding formula", "[rt][reference]") {
+  // Exact adding of a Lambertian surface below a layer (checkvalues.md section 4, with separate
+  // direct and diffuse albedo): R_tot = R(mu0) + (A_dir T_dir + A_dif T_diff) T_dif / (1 - A_dif R_dif),
+  // where R_dif, T_dif are the layer's responses to isotropic incidence, obtained here as
+  // 2 int R(mu0) mu0 dmu0 with a 32-point Gauss rule over black-surface runs (isotropic incidence
+  // from above and from below are the same for a homogeneous layer). Without delta-M so that the
+  // surface sees the true direct beam.
+  const Layer layer{1.2, 0.9, 0.6};
+  std::vector<double> x, w;
+  gauss_01(32, x, w);
+  double r_dif = 0.0, t_dif = 0.0;
+  for (std::size_t i = 0; i < x.size(); ++i) {
+    const Column c = reference({layer}, x[i], 0.0, 0.0, 32, false);
+    r_dif += 2.0 * w[i] * x[i] * c.reflectance();
+    t_dif += 2.0 * w[i] * x[i] * c.transmittance();
+  }
+  const double mu0 = 0.55, ad = 0.35, af = 0.2;
+  const Column black = reference({layer}, mu0, 0.0, 0.0, 32, false);
+  const Column grey = reference({layer}, mu0, ad, af, 32, false);
+  const double t_dir = black.dir.back() / black.incident, t_diff = black.diffuse_transmittance();
+  const double expected = black.reflectance() + (ad * t_dir + af * t_diff) * t_dif / (1.0 - af * r_dif);
+  INFO("R_tot " << grey.reflectance() << " adding formula " << expected);
+  CHECK(grey.reflectance() == Approx(expected).margin(1e-6));
+}
+
 TEST_CASE("reference: white surface under a conservative column sends everything back to space", "[rt][reference]") {
   const std::vector<Layer> col = {{0.5, 1.0, 0.3}, {4.0, 1.0, 0.8}, {0.2, 1.0, 0.0}};
   for (double mu0 : {0.1, 0.6, 1.0}) {
