@@ -93,10 +93,13 @@ void print_demo_table() {
       {"hazy", 0.4, 0.93, 0.70, 7, 9, 0.15, 0.15},
       {"smoky", 2.0, 0.88, 0.64, 3, 5, 0.17, 0.20},
   };
-  const double mu0 = 0.6, solar = 1361.0;  // invented: one band carrying a broadband-like 1361 W m-2
-  std::printf("\n# Two-stream errors against the 32-stream reference, invented demo columns,\n"
-              "# mu0 = %.2f, TOA irradiance %.0f W m-2 normal to the beam, W m-2 (two-stream - reference)\n",
-              mu0, solar);
+  const double mu0 = 0.6,
+               solar = 1361.0;  // invented: one band carrying a broadband-like 1361 W m-2
+  std::printf(
+      "\n# Two-stream errors against the 32-stream reference, invented demo columns,\n"
+      "# mu0 = %.2f, TOA irradiance %.0f W m-2 normal to the beam, W m-2 (two-stream - "
+      "reference)\n",
+      mu0, solar);
   std::printf("%-22s %-18s %10s %10s %10s %10s\n", "column", "solver", "sfc global", "sfc direct",
               "sfc diffuse", "TOA up");
   for (const Demo& d : demos) {
@@ -134,22 +137,28 @@ int main(int argc, char** argv) {
   int reps = 3;
   for (int i = 1; i < argc; ++i) {
     if (!std::strcmp(argv[i], "--help") || !std::strcmp(argv[i], "-h")) {
-      std::printf("usage: reference_bench [--problems N] [--reference-problems M] [--layers L] [--reps R]\n"
-                  "Times the discrete-ordinate reference (16 and 32 streams, on the first M of the N\n"
-                  "problems) against the delta-Eddington two-stream kernel (all N problems); prints\n"
-                  "'<case>: <X> ns per layer-solve', the ratios, and a table of two-stream errors\n"
-                  "against the reference for three invented demo columns.\n");
+      std::printf(
+          "usage: reference_bench [--problems N] [--reference-problems M] [--layers L] [--reps R]\n"
+          "Times the discrete-ordinate reference (16 and 32 streams, on the first M of the N\n"
+          "problems) against the delta-Eddington two-stream kernel (all N problems); prints\n"
+          "'<case>: <X> ns per layer-solve', the ratios, and a table of two-stream errors\n"
+          "against the reference for three invented demo columns.\n");
       return 0;
     }
-    if (i + 1 < argc && !std::strcmp(argv[i], "--problems")) np = std::strtoul(argv[++i], nullptr, 10);
-    else if (i + 1 < argc && !std::strcmp(argv[i], "--reference-problems")) np_ref = std::strtoul(argv[++i], nullptr, 10);
-    else if (i + 1 < argc && !std::strcmp(argv[i], "--layers")) nl = std::strtoul(argv[++i], nullptr, 10);
-    else if (i + 1 < argc && !std::strcmp(argv[i], "--reps")) reps = std::atoi(argv[++i]);
+    if (i + 1 < argc && !std::strcmp(argv[i], "--problems"))
+      np = std::strtoul(argv[++i], nullptr, 10);
+    else if (i + 1 < argc && !std::strcmp(argv[i], "--reference-problems"))
+      np_ref = std::strtoul(argv[++i], nullptr, 10);
+    else if (i + 1 < argc && !std::strcmp(argv[i], "--layers"))
+      nl = std::strtoul(argv[++i], nullptr, 10);
+    else if (i + 1 < argc && !std::strcmp(argv[i], "--reps"))
+      reps = std::atoi(argv[++i]);
   }
   np_ref = std::min(np_ref, np);
   Problems p = make(np, nl);
-  std::printf("# %zu problems x %zu layers (reference: first %zu problems), best of %d, single thread\n",
-              np, nl, np_ref, reps);
+  std::printf(
+      "# %zu problems x %zu layers (reference: first %zu problems), best of %d, single thread\n",
+      np, nl, np_ref, reps);
 
   Workspace work;
   const ColumnBatch all{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
@@ -178,14 +187,17 @@ int main(int argc, char** argv) {
     ReferenceOptions o;
     o.streams = streams;
     bool ok = true;
-    const double t = best_seconds(reps, [&] { ok = solve_columns_reference(sub, o, {d, f, u}).ok && ok; });
+    const double t = best_seconds(reps, [&] {
+      ok = solve_columns_reference(sub, o, {d, f, u}).ok && ok;
+    });
     if (!ok) {
       std::printf("reference failed\n");
       return 1;
     }
     const double ns_ref = 1e9 * t / (double(np_ref) * double(nl));
     std::printf("reference %d streams: %.0f ns per layer-solve\n", streams, ns_ref);
-    std::printf("ratio reference %d streams / two-stream delta_eddington: %.0f\n", streams, ns_ref / ns_de);
+    std::printf("ratio reference %d streams / two-stream delta_eddington: %.0f\n", streams,
+                ns_ref / ns_de);
     for (double x : u) checksum += x;
   }
   std::printf("# checksum %.6e\n", checksum);

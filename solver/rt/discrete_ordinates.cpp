@@ -100,7 +100,8 @@ Vec legendre(double x, int count) {
   Vec p(count);
   p[0] = 1.0;
   if (count > 1) p[1] = x;
-  for (int l = 2; l < count; ++l) p[l] = ((2.0 * l - 1.0) * x * p[l - 1] - (l - 1.0) * p[l - 2]) / l;
+  for (int l = 2; l < count; ++l)
+    p[l] = ((2.0 * l - 1.0) * x * p[l - 1] - (l - 1.0) * p[l - 2]) / l;
   return p;
 }
 
@@ -116,7 +117,8 @@ struct LayerModes {
 
 /// Delta-M scaling (Wiscombe 1977, J. Atmos. Sci. 34, 1408) of a Henyey-Greenstein layer
 /// (moments chi_l = g^l, Henyey & Greenstein 1941): f = chi_2N = g^2N,
-///   chi'_l = (chi_l - f)/(1 - f),  tau' = (1 - omega f) tau,  omega' = (1 - f) omega/(1 - omega f).
+///   chi'_l = (chi_l - f)/(1 - f),  tau' = (1 - omega f) tau,  omega' = (1 - f) omega/(1 - omega
+///   f).
 /// Without delta-M, f = 0: the series is simply truncated after l = 2N - 1.
 /// omega = 1 is kept exactly 1 (the quotient could round below it and lose conservation).
 void scale_layer(double tau, double omega, double g, int n, bool delta_m, LayerModes& L) {
@@ -234,9 +236,11 @@ Vec particular(const Streams& st, const LayerModes& L, double mu0) {
 /// For each k_j two functions (columns 2j, 2j + 1):
 ///  k tau > kModeSwitch: G(k) exp(-k x) and G(-k) exp(-k (tau - x)), x = t - t_top, with
 ///    G(+-k) = ((S -+ k E)/2, (S +- k E)/2)  (swapping u+ and u- turns k into -k);
-///  otherwise their combinations (G(k) e^{-kx} + G(-k) e^{kx})/2 and (G(-k) e^{kx} - G(k) e^{-kx})/(2k):
+///  otherwise their combinations (G(k) e^{-kx} + G(-k) e^{kx})/2 and (G(-k) e^{kx} - G(k)
+///  e^{-kx})/(2k):
 ///    u+- = S cosh(kx)/2 +- k E sinh(kx)/2   and   u+- = S sinh(kx)/(2k) +- E cosh(kx)/2,
-///  which at k = 0 are the constant (isotropic) and the linear-in-t solutions of a conservative layer.
+///  which at k = 0 are the constant (isotropic) and the linear-in-t solutions of a conservative
+///  layer.
 void mode_values(const LayerModes& L, Mat& top, Mat& bot) {
   const Eigen::Index n = L.k.size();
   top.resize(2 * n, 2 * n);

@@ -32,6 +32,7 @@ struct ReferenceOptions {
 /// production path. Validates the inputs (rt::validate) and the options first; returns a failed
 /// Status (leaving `out` untouched) when either is invalid. Never produces NaN or Inf for valid
 /// input; omega = 1 (conservative scattering) is handled exactly.
-Status solve_columns_reference(const ColumnBatch& in, const ReferenceOptions& options, LevelFluxes out);
+Status solve_columns_reference(const ColumnBatch& in, const ReferenceOptions& options,
+                               LevelFluxes out);
 
 }  // namespace solstrata::rt

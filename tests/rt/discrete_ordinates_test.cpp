@@ -42,7 +42,8 @@ Column reference(const std::vector<Layer>& layers, double mu0, double alb_dir, d
   ReferenceOptions o;
   o.streams = streams;
   o.delta_m = delta_m;
-  const Status st = solve_columns_reference({1, nl, tau, om, g, m, s, ad, af}, o, {c.dir, c.dif, c.up});
+  const Status st =
+      solve_columns_reference({1, nl, tau, om, g, m, s, ad, af}, o, {c.dir, c.dif, c.up});
   INFO(st.message);
   REQUIRE(st.ok);
   return c;
@@ -54,7 +55,8 @@ Column two_stream(const std::vector<Layer>& layers, double mu0, double alb_dir, 
   const auto tau = column_of(layers, &Layer::tau), om = column_of(layers, &Layer::omega),
              g = column_of(layers, &Layer::g);
   std::vector<double> m{mu0}, s{1.0}, ad{alb_dir}, af{alb_dif};
-  Column c{std::vector<double>(nl + 1), std::vector<double>(nl + 1), std::vector<double>(nl + 1), mu0};
+  Column c{std::vector<double>(nl + 1), std::vector<double>(nl + 1), std::vector<double>(nl + 1),
+           mu0};
   SolverOptions o;
   o.closure = closure;
   Workspace w;
@@ -116,7 +118,6 @@ double expint_e3(double x) {
   return 0.5 * (std::exp(-x) - x * e2);
 }
 
-
 /// Independent re-derivation for the cross-check below: the doubling method (van de Hulst 1963;
 /// Hansen & Travis 1974, Space Sci. Rev. 16, 527, sec. 3.3) for the azimuthally averaged
 /// reflection and transmission functions of one homogeneous layer, over the n-point half-range
@@ -143,7 +144,8 @@ Doubled doubling(double tau, double omega, double g, double mu0, int n) {
   for (int i = 0; i < m; ++i) {
     pl[i][0] = 1.0;
     pl[i][1] = x[i];
-    for (int l = 2; l < 2 * n; ++l) pl[i][l] = ((2.0 * l - 1) * x[i] * pl[i][l - 1] - (l - 1.0) * pl[i][l - 2]) / l;
+    for (int l = 2; l < 2 * n; ++l)
+      pl[i][l] = ((2.0 * l - 1) * x[i] * pl[i][l - 1] - (l - 1.0) * pl[i][l - 2]) / l;
   }
   const int doublings = 40;
   double dtau = tau / std::pow(2.0, doublings);
@@ -243,22 +245,25 @@ Doubled doubling(double tau, double omega, double g, double mu0, int n) {
 // Exact results of Chandrasekhar (1960), "Radiative Transfer", ch. V, via shared/checkvalues.md
 // section 3 ([computed] from Chandrasekhar's integral form of the H-function).
 
-TEST_CASE("semi-infinite isotropic plane albedo matches Chandrasekhar's 1 - H(mu0) sqrt(1 - omega)", "[rt][reference]") {
+TEST_CASE("semi-infinite isotropic plane albedo matches Chandrasekhar's 1 - H(mu0) sqrt(1 - omega)",
+          "[rt][reference]") {
   struct Case {
     double omega, mu0, albedo;
   };
   // [computed] values of A(mu0) = 1 - H(mu0) sqrt(1 - omega), checkvalues.md section 3.
-  const Case cases[] = {{0.9, 1.0, 0.4149475}, {0.9, 0.5, 0.5079389},
-                        {0.5, 1.0, 0.1152259}, {0.5, 0.5, 0.1601444}};
+  const Case cases[] = {
+      {0.9, 1.0, 0.4149475}, {0.9, 0.5, 0.5079389}, {0.5, 1.0, 0.1152259}, {0.5, 0.5, 0.1601444}};
   for (const Case& k : cases) {
     // tau = 1000 is semi-infinite here: the deepest mode decays as exp(-0.5 tau) for omega 0.9.
     const Column c = reference({{1000.0, k.omega, 0.0}}, k.mu0, 0.0, 0.0, 32);
-    INFO("omega " << k.omega << " mu0 " << k.mu0 << " expected " << k.albedo << " got " << c.reflectance());
+    INFO("omega " << k.omega << " mu0 " << k.mu0 << " expected " << k.albedo << " got "
+                  << c.reflectance());
     CHECK(std::abs(c.reflectance() - k.albedo) < 1e-6);  // table carries 7 digits
   }
 }
 
-TEST_CASE("semi-infinite isotropic spherical albedo matches Chandrasekhar's exact value", "[rt][reference]") {
+TEST_CASE("semi-infinite isotropic spherical albedo matches Chandrasekhar's exact value",
+          "[rt][reference]") {
   // A_s = 2 int_0^1 A(mu0) mu0 dmu0 = 1 - 2 sqrt(1 - omega) int H mu dmu; [computed] values of
   // checkvalues.md section 3. The integral over mu0 is done here with a 32-point Gauss rule on one
   // batch of 32 columns (one per mu0).
@@ -278,7 +283,8 @@ TEST_CASE("semi-infinite isotropic spherical albedo matches Chandrasekhar's exac
   }
 }
 
-TEST_CASE("conservative semi-infinite medium reflects everything: A = 1 for omega = 1", "[rt][reference]") {
+TEST_CASE("conservative semi-infinite medium reflects everything: A = 1 for omega = 1",
+          "[rt][reference]") {
   // Chandrasekhar (1960): A(mu0) = 1 for omega = 1 [exact]. A finite layer leaks T ~ 1/tau, so the
   // leak is checked against the thick-layer asymptotic law (van de Hulst 1980, "Multiple Light
   // Scattering", ch. 14, from memory): T(mu0) = 4 K(mu0) / (3 (tau + 2 q0)), escape function
@@ -315,8 +321,8 @@ TEST_CASE("pure absorber transmits diffuse light as 2 E3(tau)", "[rt][reference]
   }
 }
 
-
-TEST_CASE("reference equals an independent doubling solution of the same discrete problem", "[rt][reference]") {
+TEST_CASE("reference equals an independent doubling solution of the same discrete problem",
+          "[rt][reference]") {
   // Same angular discretisation, different algorithm (doubling, see `doubling` above): the two
   // must agree to the doubling start error (~ tau 2^-40) plus round-off, for absorbing,
   // forward-scattering layers where no closed form exists.
@@ -345,7 +351,11 @@ TEST_CASE("reference conserves energy to 1e-10 when omega is 1", "[rt][reference
       {{1.0, 1.0, 0.75}},
       {{30.0, 1.0, 0.85}},
       {{1000.0, 1.0, -0.3}},
-      {{0.3, 1.0, 0.1}, {0.0, 1.0, 0.5}, {2.0, 1.0, 0.7}, {5.0, 1.0, 0.85}, {0.05, 1.0, -0.2},
+      {{0.3, 1.0, 0.1},
+       {0.0, 1.0, 0.5},
+       {2.0, 1.0, 0.7},
+       {5.0, 1.0, 0.85},
+       {0.05, 1.0, -0.2},
        {12.0, 1.0, 0.9}},
   };
   double worst = 0.0;
@@ -369,9 +379,10 @@ TEST_CASE("reference conserves energy to 1e-10 when omega is 1", "[rt][reference
 }
 
 TEST_CASE("near-conservative layers absorb in proportion to 1 - omega", "[rt][reference]") {
-  // Exact limit: for a finite layer, absorptance = (1 - omega) * (mean photon path) + O((1 - omega)^2),
-  // so A / (1 - omega) tends to a constant as omega -> 1 (first-order perturbation; common
-  // practice). Checks that nothing breaks between omega = 1 - 1e-4 and the exact omega = 1 branch.
+  // Exact limit: for a finite layer, absorptance = (1 - omega) * (mean photon path) + O((1 -
+  // omega)^2), so A / (1 - omega) tends to a constant as omega -> 1 (first-order perturbation;
+  // common practice). Checks that nothing breaks between omega = 1 - 1e-4 and the exact omega = 1
+  // branch.
   for (int streams : {8, 32}) {
     const auto absorptance = [&](double co) {
       const Column c = reference({{10.0, 1.0 - co, 0.7}}, 0.5, 0.0, 0.0, streams);
@@ -398,10 +409,11 @@ TEST_CASE("reference with and without delta-M converges to the same answer", "[r
   }
 }
 
-TEST_CASE("reference over a Lambertian surface matches the exact surface-adding formula", "[rt][reference]") {
+TEST_CASE("reference over a Lambertian surface matches the exact surface-adding formula",
+          "[rt][reference]") {
   // Exact adding of a Lambertian surface below a layer (checkvalues.md section 4, with separate
-  // direct and diffuse albedo): R_tot = R(mu0) + (A_dir T_dir + A_dif T_diff) T_dif / (1 - A_dif R_dif),
-  // where R_dif, T_dif are the layer's responses to isotropic incidence, obtained here as
+  // direct and diffuse albedo): R_tot = R(mu0) + (A_dir T_dir + A_dif T_diff) T_dif / (1 - A_dif
+  // R_dif), where R_dif, T_dif are the layer's responses to isotropic incidence, obtained here as
   // 2 int R(mu0) mu0 dmu0 with a 32-point Gauss rule over black-surface runs (isotropic incidence
   // from above and from below are the same for a homogeneous layer). Without delta-M so that the
   // surface sees the true direct beam.
@@ -418,12 +430,14 @@ TEST_CASE("reference over a Lambertian surface matches the exact surface-adding 
   const Column black = reference({layer}, mu0, 0.0, 0.0, 32, false);
   const Column grey = reference({layer}, mu0, ad, af, 32, false);
   const double t_dir = black.dir.back() / black.incident, t_diff = black.diffuse_transmittance();
-  const double expected = black.reflectance() + (ad * t_dir + af * t_diff) * t_dif / (1.0 - af * r_dif);
+  const double expected =
+      black.reflectance() + (ad * t_dir + af * t_diff) * t_dif / (1.0 - af * r_dif);
   INFO("R_tot " << grey.reflectance() << " adding formula " << expected);
   CHECK(grey.reflectance() == Approx(expected).margin(1e-6));
 }
 
-TEST_CASE("reference: white surface under a conservative column sends everything back to space", "[rt][reference]") {
+TEST_CASE("reference: white surface under a conservative column sends everything back to space",
+          "[rt][reference]") {
   const std::vector<Layer> col = {{0.5, 1.0, 0.3}, {4.0, 1.0, 0.8}, {0.2, 1.0, 0.0}};
   for (double mu0 : {0.1, 0.6, 1.0}) {
     const Column c = reference(col, mu0, 1.0, 1.0, 16);
@@ -440,9 +454,10 @@ TEST_CASE("reference converges as the number of streams grows", "[rt][reference]
     double previous = 1.0;
     for (int streams : {4, 8, 16, 32}) {
       const Column c = reference(col, 0.6, 0.2, 0.2, streams, dm);
-      const double err = std::max({std::abs(c.reflectance() - best.reflectance()),
-                                   std::abs(c.transmittance() - best.transmittance()),
-                                   std::abs(c.diffuse_transmittance() - best.diffuse_transmittance())});
+      const double err =
+          std::max({std::abs(c.reflectance() - best.reflectance()),
+                    std::abs(c.transmittance() - best.transmittance()),
+                    std::abs(c.diffuse_transmittance() - best.diffuse_transmittance())});
       INFO("delta-M " << dm << " streams " << streams << " difference to 64 " << err);
       CHECK(err < previous);
       previous = err;
@@ -467,8 +482,10 @@ TEST_CASE("reference layer splitting: N identical sublayers equal one layer", "[
   }
 }
 
-TEST_CASE("reference pure absorption follows Beer-Lambert with no diffuse light", "[rt][reference]") {
-  const std::vector<Layer> col = {{0.2, 0.0, 0.0}, {1.5, 0.0, 0.8}, {0.0, 0.0, 0.0}, {3.0, 0.0, -0.5}};
+TEST_CASE("reference pure absorption follows Beer-Lambert with no diffuse light",
+          "[rt][reference]") {
+  const std::vector<Layer> col = {
+      {0.2, 0.0, 0.0}, {1.5, 0.0, 0.8}, {0.0, 0.0, 0.0}, {3.0, 0.0, -0.5}};
   for (double mu0 : {0.05, 0.5, 1.0}) {
     const Column c = reference(col, mu0, 0.0, 0.0, 16, true, 1000.0);
     double cum = 0.0;
@@ -482,7 +499,8 @@ TEST_CASE("reference pure absorption follows Beer-Lambert with no diffuse light"
   }
 }
 
-TEST_CASE("thin isotropic layer reflects the single-scattering value omega tau / (2 mu0)", "[rt][reference]") {
+TEST_CASE("thin isotropic layer reflects the single-scattering value omega tau / (2 mu0)",
+          "[rt][reference]") {
   // Exact single scattering of an isotropic layer (e.g. Chandrasekhar 1960, ch. I): the upward
   // intensity at mu is I = (omega F0 / 4 pi) tau / mu to first order in tau, so the reflected flux
   // 2 pi int_0^1 I mu dmu = omega tau F0 / 2 and R = omega tau / (2 mu0); the next order is
@@ -492,14 +510,17 @@ TEST_CASE("thin isotropic layer reflects the single-scattering value omega tau /
       const double tau = 1e-6;
       const Column c = reference({{tau, omega, 0.0}}, mu0, 0.0, 0.0, 16);
       const double ss = omega * tau / (2.0 * mu0);
-      INFO("mu0 " << mu0 << " omega " << omega << " R " << c.reflectance() << " single scattering " << ss);
+      INFO("mu0 " << mu0 << " omega " << omega << " R " << c.reflectance() << " single scattering "
+                  << ss);
       CHECK(c.reflectance() == Approx(ss).epsilon(20.0 * tau / mu0));
     }
   }
 }
 
-TEST_CASE("thin Henyey-Greenstein layer reflects the exact single-scattering value at overhead sun", "[rt][reference]") {
-  // At mu0 = 1 the light scattered into the upward direction mu turns by cos(Theta) = -mu, so the single-scattering reflectance of a thin layer is
+TEST_CASE("thin Henyey-Greenstein layer reflects the exact single-scattering value at overhead sun",
+          "[rt][reference]") {
+  // At mu0 = 1 the light scattered into the upward direction mu turns by cos(Theta) = -mu, so the
+  // single-scattering reflectance of a thin layer is
   //   R = (omega tau / 2) int_0^1 p(-mu) dmu,  p(x) = (1 - g^2) / (1 + g^2 - 2 g x)^(3/2)
   // (Henyey & Greenstein 1941, normalised to int_-1^1 p dx = 2), and in closed form
   //   int_0^1 p(-mu) dmu = (1 - g^2)/g [ (1 + g^2)^(-1/2) - (1 + g)^(-1) ].
@@ -510,13 +531,15 @@ TEST_CASE("thin Henyey-Greenstein layer reflects the exact single-scattering val
     const double ss = 0.5 * omega * tau * back;
     for (bool dm : {true, false}) {
       const Column c = reference({{tau, omega, g}}, 1.0, 0.0, 0.0, 64, dm);
-      INFO("g " << g << " delta-M " << dm << " R " << c.reflectance() << " single scattering " << ss);
+      INFO("g " << g << " delta-M " << dm << " R " << c.reflectance() << " single scattering "
+                << ss);
       CHECK(c.reflectance() == Approx(ss).epsilon(1e-4));
     }
   }
 }
 
-TEST_CASE("reference stays finite and smooth at the removable singularity k = 1/mu0", "[rt][reference]") {
+TEST_CASE("reference stays finite and smooth at the removable singularity k = 1/mu0",
+          "[rt][reference]") {
   // The 4-stream isotropic eigenvalues solve omega sum_j w_j / (1 - k^2 mu_j^2) = 1 (Chandrasekhar
   // 1960, ch. III, characteristic equation) with the double-Gauss nodes mu = (1 -+ 1/sqrt 3)/2,
   // w = 1/2. Solved here by bisection for the larger root k^2 in (1/mu_2^2, 1/mu_1^2).
@@ -541,7 +564,8 @@ TEST_CASE("reference stays finite and smooth at the removable singularity k = 1/
   const Column below = reference(col, mu_star - h, 0.1, 0.1, 4);
   const Column above = reference(col, mu_star + h, 0.1, 0.1, 4);
   for (std::size_t l = 0; l < 2; ++l) {
-    INFO("level " << l << " at " << at.up[l] << " neighbours " << below.up[l] << " " << above.up[l]);
+    INFO("level " << l << " at " << at.up[l] << " neighbours " << below.up[l] << " "
+                  << above.up[l]);
     CHECK(std::isfinite(at.up[l]));
     CHECK(std::isfinite(at.dif[l]));
     // smooth: the midpoint equals the neighbours' mean to O(h^2)
@@ -572,7 +596,8 @@ TEST_CASE("reference stays finite for extreme inputs", "[rt][reference]") {
   }
 }
 
-TEST_CASE("reference rejects invalid options and inputs without touching the output", "[rt][reference]") {
+TEST_CASE("reference rejects invalid options and inputs without touching the output",
+          "[rt][reference]") {
   for (int s : {0, 2, 3, 5, 66, 128}) {
     ReferenceOptions o;
     o.streams = s;
@@ -596,7 +621,8 @@ TEST_CASE("reference rejects invalid options and inputs without touching the out
 // ---------------------------------------------------------------------------------------------
 // The two-stream closures against the reference.
 
-TEST_CASE("two-stream closures versus the reference: the known weaknesses and strengths", "[rt][reference]") {
+TEST_CASE("two-stream closures versus the reference: the known weaknesses and strengths",
+          "[rt][reference]") {
   // checkvalues.md section 2, "Known weakness [computed against an exact reference]": quadrature
   // gives R < 0 at tau = 1, omega = 1, g = 0.75, mu0 = 1, while the exact R is positive.
   {
@@ -613,7 +639,8 @@ TEST_CASE("two-stream closures versus the reference: the known weaknesses and st
   // this size, from memory). Not asserted: at omega = 0.9, mu0 = 0.5 the error in T reaches 0.035.
   double worst = 0.0;
   for (double tau : {0.1, 0.5, 1.0, 2.0, 4.0}) {
-    for (const auto& [omega, mu0] : {std::pair{1.0, 1.0}, std::pair{1.0, 0.5}, std::pair{0.9, 1.0}}) {
+    for (const auto& [omega, mu0] :
+         {std::pair{1.0, 1.0}, std::pair{1.0, 0.5}, std::pair{0.9, 1.0}}) {
       const std::vector<Layer> col = {{tau, omega, 0.75}};
       const Column ref = reference(col, mu0, 0.0, 0.0, 32);
       const Column de = two_stream(col, mu0, 0.0, 0.0, Closure::delta_eddington);
@@ -625,7 +652,8 @@ TEST_CASE("two-stream closures versus the reference: the known weaknesses and st
   CHECK(worst < 0.03);
 }
 
-TEST_CASE("every two-stream closure is close to the reference for isotropic scattering", "[rt][reference]") {
+TEST_CASE("every two-stream closure is close to the reference for isotropic scattering",
+          "[rt][reference]") {
   // For g = 0 the classic closures err by a few per cent of the incident flux at most in R and T
   // (King & Harshvardhan 1986, figs. for g = 0; from memory, hence the wide 0.05 margin).
   for (double tau : {0.25, 1.0, 4.0}) {
@@ -637,7 +665,8 @@ TEST_CASE("every two-stream closure is close to the reference for isotropic scat
           const Column ts = two_stream(col, mu0, 0.0, 0.0, c);
           const double err = std::max(std::abs(ts.reflectance() - ref.reflectance()),
                                       std::abs(ts.transmittance() - ref.transmittance()));
-          INFO(to_string(c) << " tau " << tau << " omega " << omega << " mu0 " << mu0 << " err " << err);
+          INFO(to_string(c) << " tau " << tau << " omega " << omega << " mu0 " << mu0 << " err "
+                            << err);
           CHECK(err < 0.05);
         }
       }
