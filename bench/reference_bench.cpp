@@ -133,7 +133,7 @@ void print_demo_table() {
 }  // namespace
 
 int main(int argc, char** argv) {
-  std::size_t np = 256, nl = 64, np_ref = 64;
+  std::size_t np = 256, nl = 64, np_ref = 256;
   int reps = 3;
   for (int i = 1; i < argc; ++i) {
     if (!std::strcmp(argv[i], "--help") || !std::strcmp(argv[i], "-h")) {

@@ -288,7 +288,16 @@ void mode_values(const LayerModes& L, Mat& top, Mat& bot) {
 ///   surface (Lambertian, albedo A_dif for diffuse and A_dir for the beam, both isotropic):
 ///   u+_i = 2 A_dif sum_j w_j mu_j u-_j + 2 A_dir mu0 exp(-t_B/mu0)   (u = 2 pi I = 2 * flux).
 /// The scaled beam at the surface meets the direct albedo, as in the two-stream kernel.
-bool diffuse_column(const Streams& st, const std::vector<LayerModes>& layers,
+/// Sparse LU of the boundary-value system. Every column of a batch has the same layer count and
+/// stream number, and every structural entry is stored (zeros included), so the fill-reducing
+/// column ordering (analyzePattern) is computed once per call and reused.
+struct SparseSolver {
+  using Lu = Eigen::SparseLU<Eigen::SparseMatrix<double>>;
+  Lu lu;
+  bool analysed = false;
+};
+
+bool diffuse_column(SparseSolver& sparse, const Streams& st, const std::vector<LayerModes>& layers,
                     const std::vector<Mat>& tops, const std::vector<Mat>& bots, double mu0,
                     double alb_dir, double alb_dif, std::vector<double>& up,
                     std::vector<double>& down) {
@@ -313,7 +322,7 @@ bool diffuse_column(const Streams& st, const std::vector<LayerModes>& layers,
                            double factor) {
     for (int c = 0; c < nn; ++c) {
       const double v = factor * m(mrow, c);
-      if (v != 0.0) trip.emplace_back(row, col0 + c, v);
+      trip.emplace_back(row, col0 + c, v);  // zeros too: one sparsity pattern for all columns
     }
   };
   // top of atmosphere: downward components of layer 0 vanish
@@ -346,7 +355,7 @@ bool diffuse_column(const Streams& st, const std::vector<LayerModes>& layers,
     for (int i = 0; i < n; ++i) {
       for (int c = 0; c < nn; ++c) {
         const double v = bb(i, c) - refl[c];
-        if (v != 0.0) trip.emplace_back(row0 + i, c0 + c, v);
+        trip.emplace_back(row0 + i, c0 + c, v);
       }
       rhs[row0 + i] = 2.0 * alb_dir * mu0 * beam[nl] - (z[i] - zrefl);
     }
@@ -354,8 +363,11 @@ bool diffuse_column(const Streams& st, const std::vector<LayerModes>& layers,
   Eigen::SparseMatrix<double> a(size, size);
   a.setFromTriplets(trip.begin(), trip.end());
   a.makeCompressed();
-  Eigen::SparseLU<Eigen::SparseMatrix<double>> lu;
-  lu.analyzePattern(a);
+  if (!sparse.analysed) {
+    sparse.lu.analyzePattern(a);
+    sparse.analysed = true;
+  }
+  SparseSolver::Lu& lu = sparse.lu;
   lu.factorize(a);
   if (lu.info() != Eigen::Success) return false;
   const Vec coef = lu.solve(rhs);
@@ -406,6 +418,7 @@ Status solve_columns_reference(const ColumnBatch& in, const ReferenceOptions& op
   const Streams st = make_streams(n);
 
   std::vector<LayerModes> layers(nl);
+  SparseSolver sparse;
   std::vector<Mat> tops(nl), bots(nl);
   std::vector<double> up, down, up2, down2;
   std::vector<double> res_dir((nl + 1) * np), res_dif((nl + 1) * np), res_up((nl + 1) * np);
@@ -431,7 +444,7 @@ Status solve_columns_reference(const ColumnBatch& in, const ReferenceOptions& op
     const double ad = in.albedo_direct[p], af = in.albedo_diffuse[p];
     bool ok;
     if (gap >= kSingularGap) {
-      ok = diffuse_column(st, layers, tops, bots, mu0, ad, af, up, down);
+      ok = diffuse_column(sparse, st, layers, tops, bots, mu0, ad, af, up, down);
     } else {
       // Removable singularity k_j = 1/mu0: interpolate linearly between two neighbours at least
       // kSingularGap from the pole, mu0 -+ h (or extrapolate from mu0 - 2h, mu0 - h when mu0 + h
@@ -439,8 +452,8 @@ Status solve_columns_reference(const ColumnBatch& in, const ReferenceOptions& op
       const double h = 2.0 * kSingularGap * mu0;
       const double ma = mu0 + h <= 1.0 ? mu0 - h : mu0 - 2.0 * h;
       const double mb = ma + (mu0 + h <= 1.0 ? 2.0 * h : h);
-      ok = diffuse_column(st, layers, tops, bots, ma, ad, af, up, down) &&
-           diffuse_column(st, layers, tops, bots, mb, ad, af, up2, down2);
+      ok = diffuse_column(sparse, st, layers, tops, bots, ma, ad, af, up, down) &&
+           diffuse_column(sparse, st, layers, tops, bots, mb, ad, af, up2, down2);
       const double wb = (mu0 - ma) / (mb - ma);
       for (std::size_t l = 0; ok && l <= nl; ++l) {
         up[l] += wb * (up2[l] - up[l]);
