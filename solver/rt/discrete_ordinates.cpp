@@ -146,8 +146,9 @@ void scale_layer(double tau, double omega, double g, int n, bool delta_m, LayerM
   L.omega = omega == 1.0 ? 1.0 : std::min(1.0, (1.0 - f) * omega / (1.0 - omega * f));
 }
 
-/// Homogeneous solution of one layer (Stamnes et al. 1988, sec. II; Stamnes & Swanson 1981):
-/// modes u+- = G+- exp(-k t). With S = G+ + G-, D = G+ - G-, X = 1 - a + b, Y = 1 - a - b:
+/// Homogeneous solution of one layer (Stamnes & Swanson 1981, J. Atmos. Sci. 38, 387; Stamnes et
+/// al. 1988): modes u+- = G+- exp(-k t). With S = G+ + G-, D = G+ - G-, X = 1 - a + b, Y = 1 - a -
+/// b:
 ///   -k D = M^-1 Y S,   -k S = M^-1 X D   =>   (M^-1 X M^-1 Y) S = k^2 S,   D = -k X^-1 M S.
 /// The N x N problem is symmetrised with T = W^(1/2) (T a T^-1 is symmetric): with
 /// K = M^-1 (T X T^-1) M^-1 = L L^T (Cholesky) the matrix L^T (T Y T^-1) L is symmetric, its
@@ -213,7 +214,8 @@ void solve_modes(const Streams& st, LayerModes& L) {
 }
 
 /// Particular solution for the beam, u+- = Z+- exp(-t/mu0) per unit F0 (Stamnes et al. 1988,
-/// eq. 16 for m = 0): [(1 - a) + M/mu0] Z+ - b Z- = Q+,  -b Z+ + [(1 - a) - M/mu0] Z- = Q-.
+/// the m = 0 case), from substituting it into the equations of transfer:
+///   [(1 - a) + M/mu0] Z+ - b Z- = Q+,   -b Z+ + [(1 - a) - M/mu0] Z- = Q-.
 /// Singular where 1/mu0 is an eigenvalue k_j; the caller keeps mu0 away from that (kSingularGap).
 Vec particular(const Streams& st, const LayerModes& L, double mu0) {
   const int n = st.n;
@@ -293,7 +295,7 @@ void mode_values(const LayerModes& L, Mat& top, Mat& bot) {
 /// up[l] and down_scaled[l] (downward diffuse flux of the delta-M-scaled problem, i.e. without the
 /// scaled beam). Returns false if the boundary-value solve fails.
 ///
-/// Boundary-value problem (Stamnes et al. 1988, sec. III), unknowns = 2N coefficients per layer:
+/// Boundary-value problem (Stamnes et al. 1988), unknowns = 2N coefficients per layer:
 ///   top of atmosphere: u-(0) = 0 (no diffuse light enters);
 ///   each interface: u+- continuous;
 ///   surface (Lambertian, albedo A_dif for diffuse and A_dir for the beam, both isotropic):

@@ -119,7 +119,7 @@ double expint_e3(double x) {
 }
 
 /// Independent re-derivation for the cross-check below: the doubling method (van de Hulst 1963;
-/// Hansen & Travis 1974, Space Sci. Rev. 16, 527, sec. 3.3) for the azimuthally averaged
+/// Hansen & Travis 1974, Space Sci. Rev. 16, 527) for the azimuthally averaged
 /// reflection and transmission functions of one homogeneous layer, over the n-point half-range
 /// Gauss rule plus the beam direction mu0 as an extra node of zero weight. Phase function: the
 /// Henyey-Greenstein Legendre series truncated after l = 2n - 1, as the reference uses without
@@ -287,9 +287,10 @@ TEST_CASE("conservative semi-infinite medium reflects everything: A = 1 for omeg
           "[rt][reference]") {
   // Chandrasekhar (1960): A(mu0) = 1 for omega = 1 [exact]. A finite layer leaks T ~ 1/tau, so the
   // leak is checked against the thick-layer asymptotic law (van de Hulst 1980, "Multiple Light
-  // Scattering", ch. 14, from memory): T(mu0) = 4 K(mu0) / (3 (tau + 2 q0)), escape function
-  // K(mu) = (sqrt(3)/4) H(mu) and extrapolation length q0 = 0.710446 (Hopf's constant) for
-  // isotropic scattering; H(1) = 2.907811, H(0.5) = 2.012779 (checkvalues.md section 3).
+  // Scattering", asymptotic theory of thick layers, from memory): T(mu0) = 4 K(mu0) / (3 (tau + 2
+  // q0)), escape function K(mu) = (sqrt(3)/4) H(mu) and extrapolation length q0 = 0.710446 (Hopf's
+  // constant) for isotropic scattering; H(1) = 2.907811, H(0.5) = 2.012779 (checkvalues.md section
+  // 3).
   for (const auto& [mu0, h] : {std::pair{1.0, 2.907811}, std::pair{0.5, 2.012779}}) {
     for (double tau : {100.0, 1000.0, 1e4}) {
       const Column c = reference({{tau, 1.0, 0.0}}, mu0, 0.0, 0.0, 16);
