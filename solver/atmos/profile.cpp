@@ -41,8 +41,8 @@ std::string Profile::validate() const {
   }
   for (std::size_t i = 0; i < n; ++i) {
     const std::string at = std::string("[").append(std::to_string(i)).append("] = ");
-    if (!std::isfinite(pressure_hpa[i]) || pressure_hpa[i] < 0.0 || pressure_hpa[i] > 2000.0) {
-      return "pressure_hpa" + at + num(pressure_hpa[i]) + " hPa must be in [0, 2000]";
+    if (!std::isfinite(pressure_hpa[i]) || pressure_hpa[i] < 0.0 || pressure_hpa[i] > 1e4) {
+      return "pressure_hpa" + at + num(pressure_hpa[i]) + " hPa must be in [0, 1e4]";
     }
     if (i > 0 && !(pressure_hpa[i] > pressure_hpa[i - 1])) {
       return "pressure_hpa" + at + num(pressure_hpa[i]) +
