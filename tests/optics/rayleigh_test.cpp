@@ -40,8 +40,9 @@ TEST_CASE("column Rayleigh optical depth matches Bodhaine's eq. 30 within 0.1 %"
 }
 
 TEST_CASE("Rayleigh optical depth agrees with Hansen and Travis within their accuracy", "[optics]") {
-  // Hansen & Travis (1974) differ from Bodhaine's eq. 30 by -0.7 % (0.3 um) to +0.35 % (1 um)
-  // [computed, shared/checkvalues.md section 1]; their fit is quoted to about 1 %.
+  // Hansen & Travis (1974) differ from Bodhaine's eq. 30 by -0.7 % (0.3 um) to +0.33 % (0.8 um)
+  // [computed, shared/checkvalues.md section 1]; we allow 1 %, the accuracy we recall for their
+  // fit (from memory). Measured: ours - H&T = +0.72 % at 0.3 um .. -0.35 % at 1 um.
   for (double um = 0.3; um <= 1.0001; um += 0.05) {
     const double tau = rayleigh_column_optical_depth(um * 1000, 1013.25, 45.0, 0.0, 360.0);
     INFO(um << " um: ours " << tau << ", Hansen & Travis " << hansen_travis(um));
