@@ -49,6 +49,15 @@ TEST_CASE("every default band is covered exactly by its bins", "[spectrum]") {
   }
 }
 
+TEST_CASE("band sums add up the bins of each band", "[spectrum]") {
+  // Bin widths summed per band give the band widths (exact arithmetic on these edges).
+  const Grid g = make_grid({{300, 320, 7}}, {{"custom", 303, 310}, {"all", 300, 320}});
+  std::vector<double> widths;
+  for (const Bin& b : g.bins()) widths.push_back(b.width_nm());
+  CHECK(band_sums(g, widths) == std::vector<double>{7.0, 20.0});
+  CHECK_THROWS_AS(band_sums(g, {1.0}), std::invalid_argument);
+}
+
 TEST_CASE("grid and band validation name the field, the value and the rule", "[spectrum]") {
   CHECK(validate(std::vector<GridSegment>{}).find("at least one segment") != std::string::npos);
   CHECK(validate({{300, 400, 0}}).find("step_nm 0") != std::string::npos);
