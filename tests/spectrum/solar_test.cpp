@@ -58,6 +58,8 @@ TEST_CASE("the built-in spectrum integrates to the total solar irradiance", "[sp
   CHECK(s.approximate);
   CHECK(s.kind == SolarSourceKind::builtin_planck);
   CHECK(to_string(s.kind) == "builtin_planck");
+  CHECK(parse_solar_source_kind("user_table") == SolarSourceKind::user_table);
+  CHECK_FALSE(parse_solar_source_kind("planck"));
   CHECK(s.description.find("approximation") != std::string::npos);
 }
 
