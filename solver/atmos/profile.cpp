@@ -71,7 +71,7 @@ std::string Profile::validate() const {
 }
 
 double gravity_cm_s2(double latitude_deg, double z_m) {
-  // Bodhaine et al. (1999) eqs. 11 and 12 (List 1968).
+  // Bodhaine et al. (1999), after List (1968).
   const double c2p = std::cos(2.0 * latitude_deg * std::numbers::pi / 180.0);
   const double g0 = 980.6160 * (1.0 - 0.0026373 * c2p + 0.0000059 * c2p * c2p);
   return g0 - (3.085462e-4 + 2.27e-7 * c2p) * z_m + (7.254e-11 + 1.0e-13 * c2p) * z_m * z_m -

@@ -22,7 +22,7 @@ Profile two_layers() {
 }  // namespace
 
 TEST_CASE("gravity follows Bodhaine's formula at sea level", "[atmos]") {
-  // Bodhaine et al. (1999) eq. 11: g0(45 deg) = 980.6160 (1 - 0.0026373 cos 90 + ...) = 980.6160
+  // Bodhaine et al. (1999): g0(45 deg) = 980.6160 (1 - 0.0026373 cos 90 + ...) = 980.6160
   // [published]; at the equator 980.6160 (1 - 0.0026373 + 0.0000059) = 978.03561 and at the
   // pole 980.6160 (1 + 0.0026373 + 0.0000059) = 983.20796 [computed by hand]. The international
   // gravity formula gives 978.03 and 983.22 cm s-2 (common practice, 2e-5).

@@ -15,7 +15,7 @@ double geometric(double H) { return kR0 * H / (kR0 - H); }
 }  // namespace
 
 TEST_CASE("standard atmosphere reproduces the published layer-base pressures and temperatures", "[atmos]") {
-  // U.S. Standard Atmosphere 1976, Table 4 (shared/checkvalues.md section 9) [published], the
+  // U.S. Standard Atmosphere 1976 layer bases (shared/checkvalues.md section 9) [published], the
   // 71 km pressure [memory]. The standard rounds its own tables: 22632.10 Pa at 11 km comes out
   // 22632.06 from its constants (2e-6), hence 1e-5.
   struct Row {

@@ -58,7 +58,7 @@ TEST_CASE("300 DU of ozone has a Chappuis-peak optical depth near 0.04", "[optic
 }
 
 TEST_CASE("ozone absorption of the solar beam agrees with Lacis and Hansen", "[optics]") {
-  // Lacis & Hansen (1974), J. Atmos. Sci. 31, 118, eqs. 17-18 (from memory): fraction of the
+  // Lacis & Hansen (1974), J. Atmos. Sci. 31, 118 (formulas from memory): fraction of the
   // total solar flux absorbed by an ozone path x (cm STP):
   //   A_uv(x) = 1.082 x / (1 + 138.6 x)^0.805 + 0.0658 x / (1 + (103.6 x)^3),
   //   A_vis(x) = 0.02118 x / (1 + 0.042 x + 0.000323 x^2).

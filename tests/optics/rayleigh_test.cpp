@@ -66,7 +66,7 @@ TEST_CASE("Rayleigh ingredients match their published values", "[optics]") {
   // Edlén CO2 scaling: +100 ppm raises (n - 1) by 0.54 * 1e-4 relative.
   CHECK((air_refractive_index(550, 400) - 1) / (air_refractive_index(550, 300) - 1) ==
         Approx(1 + 0.54e-4).epsilon(1e-12));
-  // Cross section at 550 nm about 4.5e-27 cm2 (Bodhaine et al. 1999 Table 3 region, from memory).
+  // Cross section at 550 nm about 4.5e-27 cm2 (Bodhaine et al. 1999, from memory).
   CHECK(rayleigh_cross_section(550, 360) == Approx(4.51e-27).epsilon(0.01));
 }
 
