@@ -41,8 +41,8 @@ std::string Profile::validate() const {
   }
   for (std::size_t i = 0; i < n; ++i) {
     const std::string at = std::string("[").append(std::to_string(i)).append("] = ");
-    if (!std::isfinite(pressure_hpa[i]) || pressure_hpa[i] < 0.0 || pressure_hpa[i] > 2000.0) {
-      return "pressure_hpa" + at + num(pressure_hpa[i]) + " hPa must be in [0, 2000]";
+    if (!std::isfinite(pressure_hpa[i]) || pressure_hpa[i] < 0.0 || pressure_hpa[i] > 1e4) {
+      return "pressure_hpa" + at + num(pressure_hpa[i]) + " hPa must be in [0, 1e4]";
     }
     if (i > 0 && !(pressure_hpa[i] > pressure_hpa[i - 1])) {
       return "pressure_hpa" + at + num(pressure_hpa[i]) +
@@ -71,7 +71,7 @@ std::string Profile::validate() const {
 }
 
 double gravity_cm_s2(double latitude_deg, double z_m) {
-  // Bodhaine et al. (1999) eqs. 11 and 12 (List 1968).
+  // Bodhaine et al. (1999), after List (1968).
   const double c2p = std::cos(2.0 * latitude_deg * std::numbers::pi / 180.0);
   const double g0 = 980.6160 * (1.0 - 0.0026373 * c2p + 0.0000059 * c2p * c2p);
   return g0 - (3.085462e-4 + 2.27e-7 * c2p) * z_m + (7.254e-11 + 1.0e-13 * c2p) * z_m * z_m -

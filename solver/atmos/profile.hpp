@@ -25,7 +25,7 @@ struct Profile {
   std::vector<double> altitude_km;    ///< km: altitude above mean sea level, strictly decreasing
   std::vector<double> ozone_ppmv;     ///< ppmv (1e-6 mol/mol): ozone volume mixing ratio, >= 0
   std::vector<double> h2o_ppmv;       ///< ppmv (1e-6 mol/mol): water-vapour volume mixing ratio, >= 0
-  double latitude_deg = 45.0;         ///< degrees north: sets gravity (Bodhaine et al. 1999 eq. 11)
+  double latitude_deg = 45.0;         ///< degrees north: sets gravity (Bodhaine et al. 1999)
   double co2_ppmv = 400.0;            ///< ppmv: CO2 volume mixing ratio (Rayleigh, molar mass of air)
   std::string name;                   ///< label for provenance, e.g. "us_standard_1976"
 
@@ -47,12 +47,12 @@ struct LayerColumns {
 };
 
 /// cm s-2: gravitational acceleration at latitude `latitude_deg` and altitude `z_m` (m), from
-/// Bodhaine et al. (1999), J. Atmos. Oceanic Technol. 16, eqs. 11-12 (after List 1968):
+/// Bodhaine et al. (1999), J. Atmos. Oceanic Technol. 16, 1854 (after List 1968):
 /// g0 = 980.6160 (1 - 0.0026373 cos 2phi + 0.0000059 cos^2 2phi) and a cubic altitude correction.
 double gravity_cm_s2(double latitude_deg, double z_m);
 
 /// g mol-1: mean molar mass of dry air with CO2 at `co2_ppmv`, m_a = 15.0556 C + 28.9595 (C in
-/// parts per volume; Bodhaine et al. 1999 eq. 17).
+/// parts per volume; Bodhaine et al. 1999).
 double air_molar_mass(double co2_ppmv);
 
 /// Layer columns of a valid profile. Air: N = delta p / (m g) with the molecular mass of dry air

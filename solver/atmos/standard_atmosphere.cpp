@@ -23,7 +23,7 @@ struct Layer {
   double base_m;  // m: geopotential base height
   double lapse;   // K m-1: dT/dH
 };
-// The standard's Table 4: base geopotential heights and lapse rates; the top is 84852 m.
+// The standard's defining layers: base geopotential heights and lapse rates; the top is 84852 m.
 constexpr std::array<Layer, 7> kLayers = {{{0, -0.0065},
                                            {11000, 0.0},
                                            {20000, 0.001},
@@ -42,7 +42,7 @@ StandardState at_geopotential(double H) {
     const bool last = H <= Htop || i + 1 == kLayers.size();
     const double h = last ? H : Htop;
     const double T = Tb + L * (h - Hb);
-    // Eq. 33a (L != 0): p = pb (Tb / T)^(g0 M0 / (R* L)); eq. 33b (L = 0): p = pb exp(-g0 M0 (H - Hb) / (R* Tb)).
+    // L != 0: p = pb (Tb / T)^(g0 M0 / (R* L)); L = 0: p = pb exp(-g0 M0 (H - Hb) / (R* Tb)).
     const double p = L != 0.0 ? pb * std::pow(Tb / T, gmr / L) : pb * std::exp(-gmr * (h - Hb) / Tb);
     if (last) return {p, T};
     Tb = T;

@@ -15,14 +15,14 @@ struct StandardState {
 };
 
 /// m: geopotential height H = r0 z / (r0 + z) of geometric altitude `z_m` (m), r0 = 6356766 m
-/// (U.S. Standard Atmosphere 1976, NOAA/NASA/USAF, eq. 18).
+/// (U.S. Standard Atmosphere 1976, NOAA/NASA/USAF).
 double geopotential_height_m(double z_m);
 
 /// The U.S. Standard Atmosphere 1976 at geometric altitude `z_m` in [-5000, 86000] m, from its
 /// definition: seven layers of constant lapse rate in geopotential height (base heights 0, 11,
 /// 20, 32, 47, 51, 71 km; lapse rates -6.5, 0, +1, +2.8, 0, -2.8, -2.0 K/km), sea-level 101325 Pa
 /// and 288.15 K, g0 = 9.80665 m s-2, M0 = 28.9644 kg kmol-1, R* = 8314.32 J kmol-1 K-1, and the
-/// hydrostatic equation integrated exactly in each layer (the standard's eqs. 23, 33a, 33b).
+/// hydrostatic equation integrated exactly in each layer.
 /// Throws std::invalid_argument outside that range.
 StandardState us_standard_1976(double z_m);
 

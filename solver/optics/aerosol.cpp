@@ -54,8 +54,8 @@ std::optional<AerosolType> parse_aerosol_type(std::string_view name) {
 
 AerosolPreset preset(AerosolType t) {
   // omega and g at 550 nm, relative humidity 80 %: OPAC, Hess, Koepke & Schult (1998), Bull. Amer.
-  // Meteor. Soc. 79, 831, Table 4. Continental polluted is published; the others are from memory.
-  // Ångström exponents: OPAC Table 4, 500-800 nm pair, from memory. Smoke: Dubovik et al. (2002),
+  // Meteor. Soc. 79, 831. Continental polluted is published; the others are from memory.
+  // Ångström exponents: OPAC, 500-800 nm pair, from memory. Smoke: Dubovik et al. (2002),
   // J. Atmos. Sci. 59, 590, savanna biomass burning (omega, g at 440 nm; alpha 440-870 nm), from
   // memory.
   switch (t) {

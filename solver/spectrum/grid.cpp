@@ -135,6 +135,21 @@ Grid make_grid(const std::vector<GridSegment>& segments, const std::vector<Band>
   return Grid(std::move(bins), bands);
 }
 
+std::vector<double> band_sums(const Grid& grid, const std::vector<double>& per_bin) {
+  if (per_bin.size() != grid.size()) {
+    throw std::invalid_argument("band_sums: " + std::to_string(per_bin.size()) +
+                                " values for a grid of " + std::to_string(grid.size()) + " bins");
+  }
+  std::vector<double> out;
+  for (std::size_t b = 0; b < grid.bands().size(); ++b) {
+    const BinRange r = grid.band_bins(b);
+    double s = 0.0;
+    for (std::size_t i = r.first; i < r.last; ++i) s += per_bin[i];
+    out.push_back(s);
+  }
+  return out;
+}
+
 std::vector<SpectralPoint> plain_points(const Grid& grid) {
   std::vector<SpectralPoint> p(grid.size());
   for (std::size_t i = 0; i < p.size(); ++i) p[i] = {i, 1.0};

@@ -87,6 +87,11 @@ std::string validate(const std::vector<Band>& bands, double lower_nm, double upp
 /// validate() message on bad input.
 Grid make_grid(const std::vector<GridSegment>& segments, const std::vector<Band>& bands = {});
 
+/// Sums of a per-bin quantity over each band of the grid (e.g. W m-2 per bin -> W m-2 per band):
+/// band results are always sums of bin results, never computed from band-mean optical depth.
+/// `per_bin` must have grid.size() values; throws std::invalid_argument otherwise.
+std::vector<double> band_sums(const Grid& grid, const std::vector<double>& per_bin);
+
 /// One spectral point at which the solver runs: a bin, or later a (bin, k-term) pair. The weight
 /// is the fraction of the bin's solar irradiance the point carries (1 for a plain bin; the
 /// weights of one bin's k-terms would sum to 1).

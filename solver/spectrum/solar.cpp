@@ -208,6 +208,13 @@ std::string_view to_string(SolarSourceKind k) {
   return "unknown";
 }
 
+std::optional<SolarSourceKind> parse_solar_source_kind(std::string_view name) {
+  for (SolarSourceKind k : {SolarSourceKind::builtin_planck, SolarSourceKind::user_table}) {
+    if (to_string(k) == name) return k;
+  }
+  return std::nullopt;
+}
+
 double SolarSource::total() const {
   double t = 0.0;
   for (double v : bin_irradiance) t += v;

@@ -1,6 +1,7 @@
 // Top-of-atmosphere solar spectral irradiance: built-in Planck approximation or a user's table.
 #pragma once
 
+#include <optional>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -47,6 +48,8 @@ enum class SolarSourceKind {
 };
 /// Stable lower-case name for files and attributes ("builtin_planck", "user_table").
 std::string_view to_string(SolarSourceKind k);
+/// Inverse of to_string; std::nullopt for an unknown name.
+std::optional<SolarSourceKind> parse_solar_source_kind(std::string_view name);
 
 /// TOA solar irradiance per bin at mean Earth–Sun distance, with its provenance.
 struct SolarSource {

@@ -21,14 +21,14 @@ double day_angle(double day_of_year) {
 
 double earth_sun_factor(double day_of_year) {
   const double G = day_angle(day_of_year);
-  // Spencer (1971), coefficients as reproduced by Iqbal (1983), eq. 1.2.1.
+  // Spencer (1971), coefficients as reproduced by Iqbal (1983).
   return 1.000110 + 0.034221 * std::cos(G) + 0.001280 * std::sin(G) +
          0.000719 * std::cos(2 * G) + 0.000077 * std::sin(2 * G);
 }
 
 double solar_declination(double day_of_year) {
   const double G = day_angle(day_of_year);
-  // Spencer (1971), coefficients as reproduced by Iqbal (1983), eq. 1.3.1.
+  // Spencer (1971), coefficients as reproduced by Iqbal (1983).
   return 0.006918 - 0.399912 * std::cos(G) + 0.070257 * std::sin(G) -
          0.006758 * std::cos(2 * G) + 0.000907 * std::sin(2 * G) -
          0.002697 * std::cos(3 * G) + 0.00148 * std::sin(3 * G);

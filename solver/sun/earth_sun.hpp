@@ -8,7 +8,7 @@ namespace solstrata::sun {
 /// dimensionless: the factor (r0/r)^2 by which the mean-distance solar irradiance is multiplied on
 /// day `day_of_year` (1 = 1 January, fractional days allowed, [1, 367)), from the Fourier series of
 /// Spencer (1971), Search 2(5), 172 (as reproduced in Iqbal 1983, "An Introduction to Solar
-/// Radiation", eq. 1.2.1): Gamma = 2 pi (d - 1)/365,
+/// Radiation"): Gamma = 2 pi (d - 1)/365,
 ///   (r0/r)^2 = 1.000110 + 0.034221 cos G + 0.001280 sin G + 0.000719 cos 2G + 0.000077 sin 2G.
 /// Stated accuracy about 1e-4. Throws std::invalid_argument outside [1, 367).
 double earth_sun_factor(double day_of_year);
