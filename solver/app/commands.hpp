@@ -17,5 +17,7 @@ enum ExitCode : int {
 int run_command(const std::vector<std::string>& args);
 /// `solstrata check EXP.yaml`
 int check_command(const std::vector<std::string>& args);
+/// `solstrata accuracy EXP.yaml [--streams N] [--sample K] [-o OUT.h5] [--quiet]`
+int accuracy_command(const std::vector<std::string>& args);
 
 }  // namespace solstrata::app

@@ -22,6 +22,7 @@ usage: solstrata <command> [options]
 commands:
   run         run an experiment file and write its results (HDF5, optional CSV)
   check       validate an experiment file without running it
+  accuracy    compare the two-stream answer with the exact multi-stream reference
   demo        solve a built-in demo column and print its level fluxes
 
 Experiment keys: docs/experiment-keys.md; examples in config/.
@@ -120,5 +121,6 @@ int main(int argc, char** argv) {
   if (cmd == "demo") return demo_command(rest);
   if (cmd == "run") return app::run_command(rest);
   if (cmd == "check") return app::check_command(rest);
+  if (cmd == "accuracy") return app::accuracy_command(rest);
   return usage_error("unknown command '" + cmd + "'");
 }

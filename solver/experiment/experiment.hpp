@@ -75,6 +75,9 @@ struct Experiment {
   std::string solar_column;                     ///< its column ("" = the only one)
 
   rt::Closure closure = rt::Closure::delta_eddington;  ///< two-stream closure
+  /// true: solve with the exact multi-stream reference (discrete ordinates) instead of two-stream
+  bool reference_solver = false;
+  int reference_streams = 16;  ///< streams of the reference solver, even, 4..64
   OutputConfig output;                                 ///< where and what to write
 };
 

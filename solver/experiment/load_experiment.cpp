@@ -359,7 +359,8 @@ const std::vector<std::pair<std::string, std::string>>& top_level_keys() {
       {"sun", "solar zenith angle, Earth-Sun distance, irradiance scaling"},
       {"surface", "Lambertian albedo (direct, diffuse, per band)"},
       {"spectrum", "wavelength bins, reporting bands, solar spectrum file"},
-      {"solver", "two-stream closure"},
+      {"solver", "two-stream closure, or the exact multi-stream reference"},
+      {"sweep", "grid or zipped axes over any numeric key, or a scenario list"},
       {"output", "output file, spectral output, CSV summary"},
       {"given_optics", "user-given layer optics instead of atmosphere/aerosol/spectrum"},
   };
@@ -413,6 +414,10 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
   if (auto s = root.optional_subsection("surface")) read_surface(*s, e);
   if (auto s = root.optional_subsection("solver")) {
     e.closure = *rt::parse_closure(s->optional_choice("closure", "delta_eddington", kClosureNames).value);
+    e.reference_solver = s->optional_choice("method", "two_stream", {"two_stream", "reference"}).value == "reference";
+    const auto streams = s->optional_integer("streams", 16, Range::closed(4, 64));
+    if (streams.value % 2 != 0) throw s->document().error(streams, "the number of streams must be even");
+    e.reference_streams = static_cast<int>(streams.value);
     s->check_no_unknown_keys();
   }
   {

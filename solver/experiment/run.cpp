@@ -7,6 +7,7 @@
 
 #include "optics/column_optics.hpp"
 #include "products/surface_products.hpp"
+#include "rt/discrete_ordinates.hpp"
 #include "rt/two_stream.hpp"
 #include "spectrum/solar.hpp"
 
@@ -24,18 +25,24 @@ struct Fluxes {
   std::vector<double> dir, dif, up;
 };
 
-Fluxes solve(const Problems& p, rt::Closure closure) {
+Fluxes solve(const Problems& p, const Experiment& e) {
   Fluxes f;
   const std::size_t nlev = p.nl + 1;
   f.dir.assign(nlev * p.n, 0.0);
   f.dif.assign(nlev * p.n, 0.0);
   f.up.assign(nlev * p.n, 0.0);
+  const rt::ColumnBatch batch{p.n, p.nl, p.tau, p.omega, p.g, p.mu0, p.solar, p.albedo_direct, p.albedo_diffuse};
+  if (e.reference_solver) {
+    rt::ReferenceOptions ref;
+    ref.streams = e.reference_streams;
+    const rt::Status st = rt::solve_columns_reference(batch, ref, {f.dir, f.dif, f.up});
+    if (!st.ok) throw std::runtime_error("reference solver: " + st.message);
+    return f;
+  }
   rt::SolverOptions opt;
-  opt.closure = closure;
+  opt.closure = e.closure;
   rt::Workspace work;
-  const rt::Status st = rt::solve_columns({p.n, p.nl, p.tau, p.omega, p.g, p.mu0, p.solar,
-                                           p.albedo_direct, p.albedo_diffuse},
-                                          opt, {f.dir, f.dif, f.up}, work);
+  const rt::Status st = rt::solve_columns(batch, opt, {f.dir, f.dif, f.up}, work);
   if (!st.ok) throw std::runtime_error("two-stream solver: " + st.message);
   return f;
 }
@@ -132,7 +139,7 @@ RunResult run_given(const Experiment& e, double mu0, double factor) {
     p.albedo_direct.push_back(e.albedo_direct);
     p.albedo_diffuse.push_back(e.albedo_diffuse);
   }
-  const Fluxes f = solve(p, e.closure);
+  const Fluxes f = solve(p, e);
   RunResult r;
   r.n_levels = p.nl + 1;
   r.n_layers = p.nl;
@@ -182,7 +189,7 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
     p.albedo_direct.push_back(alb_dir[bin]);
     p.albedo_diffuse.push_back(alb_dif[bin]);
   }
-  const Fluxes f = solve(p, e.closure);
+  const Fluxes f = solve(p, e);
 
   RunResult r;
   r.n_levels = p.nl + 1;
@@ -276,7 +283,8 @@ RunResult run_experiment(const Experiment& e) {
   r.solar_zenith_deg = e.solar_zenith_deg;
   r.mu0 = mu0;
   r.earth_sun_factor = distance;
-  r.closure = std::string(rt::to_string(e.closure));
+  r.closure = e.reference_solver ? "reference_discrete_ordinates_" + std::to_string(e.reference_streams) + "_streams"
+                                 : std::string(rt::to_string(e.closure));
   derive(r);
   return r;
 }

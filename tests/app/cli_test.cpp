@@ -67,7 +67,7 @@ surface:
 }  // namespace
 
 TEST_CASE("every command has --help and the tool has --version", "[app]") {
-  for (const char* c : {"--help", "run --help", "check --help", "demo --help"}) {
+  for (const char* c : {"--help", "run --help", "check --help", "accuracy --help", "demo --help"}) {
     const Outcome o = run(c);
     INFO(c << ": " << o.err);
     CHECK(o.code == 0);
@@ -165,4 +165,17 @@ TEST_CASE("bad experiment files are refused with a pointed message, exit code 2 
   CHECK(o.code == 2);
   CHECK(o.err.find("missing.yaml") != std::string::npos);
   CHECK(leftovers().empty());
+}
+
+TEST_CASE("accuracy compares the closure with the reference and writes the comparison", "[app]") {
+  std::ofstream(workdir() / "acc.yaml") << kGood;
+  const Outcome o = run("accuracy acc.yaml --streams 8 -o acc.h5");
+  INFO(o.err);
+  REQUIRE(o.code == 0);
+  CHECK(o.out.find("8-stream reference") != std::string::npos);
+  CHECK(o.out.find("broadband") != std::string::npos);
+  CHECK(fs::exists(workdir() / "acc.h5"));
+  fs::remove(workdir() / "acc.h5");
+  CHECK(run("accuracy acc.yaml --streams 7").code == 2);
+  CHECK(run("accuracy").code == 2);
 }

@@ -7,6 +7,7 @@
 #include <numeric>
 
 #include "experiment/experiment.hpp"
+#include "experiment/input_error.hpp"
 #include "io/hdf5_reader.hpp"
 #include "io/result_file.hpp"
 
@@ -167,4 +168,33 @@ surface: {albedo: 0}
   half.replace(half.find("1013.25"), 7, "506.625");
   const experiment::RunResult r2 = experiment::run_experiment(experiment::parse_experiment(half, "rayleigh2.yaml", "."));
   CHECK(r2.band_tau_rayleigh[0] == Approx(tau / 2).epsilon(1e-9));
+}
+
+TEST_CASE("the reference solver can be chosen in an experiment and agrees with two-stream closely", "[experiment]") {
+  // A conservative given-optics layer: the multi-stream reference conserves energy (exact limit),
+  // and delta-Eddington stays within a few per cent of it for a thin hazy layer at mid sun
+  // (checkvalues.md section 2: within about 0.03 absolute for tau <= 4).
+  const std::string text = R"(
+given_optics:
+  solar_irradiance_w_m2: 1000
+  layers:
+    - {optical_depth: 0.8, single_scattering_albedo: 1.0, asymmetry_parameter: 0.7}
+sun: {solar_zenith_deg: 45}
+surface: {albedo: 0}
+solver: {method: reference, streams: 16}
+)";
+  experiment::Experiment e = experiment::parse_experiment(text, "ref.yaml", ".");
+  REQUIRE(e.reference_solver);
+  const experiment::RunResult ref = experiment::run_experiment(e);
+  const double incident = ref.toa_down;
+  CHECK(ref.diffuse_up[0] + ref.direct_down[1] + ref.diffuse_down[1] == Approx(incident).epsilon(1e-10));
+  e.reference_solver = false;
+  const experiment::RunResult ts = experiment::run_experiment(e);
+  CHECK(std::abs(ts.diffuse_up[0] - ref.diffuse_up[0]) / incident < 0.03);
+  CHECK(ts.direct_down[1] == Approx(ref.direct_down[1]).epsilon(1e-12));
+  CHECK(ref.closure.find("reference") != std::string::npos);
+  // Odd stream counts are refused.
+  std::string odd = text;
+  odd.replace(odd.find("streams: 16"), 11, "streams: 15");
+  CHECK_THROWS_AS(experiment::parse_experiment(odd, "odd.yaml", "."), experiment::InputError);
 }

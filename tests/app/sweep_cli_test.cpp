@@ -1,0 +1,137 @@
+// Sweeps from the command line: thread-count independence, kill -9 and resume, refusals.
+#include <catch2/catch.hpp>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+#include <string>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include "io/hdf5_reader.hpp"
+
+namespace fs = std::filesystem;
+
+namespace {
+
+fs::path dir() {
+  static const fs::path d = [] {
+    const fs::path p = fs::temp_directory_path() / ("solstrata_sweepcli_" + std::to_string(::getpid()));
+    fs::create_directories(p);
+    return p;
+  }();
+  return d;
+}
+
+struct Outcome {
+  int code;        // exit code, or 128 + signal
+  std::string err;
+};
+
+Outcome sh(const std::string& args, const std::string& env = "") {
+  const fs::path e = dir() / "stderr.txt";
+  const std::string cmd = "cd '" + dir().string() + "' && " + env + " '" + SOLSTRATA_BINARY + "' " + args +
+                          " > /dev/null 2> '" + e.string() + "'";
+  const int status = std::system(cmd.c_str());
+  std::ifstream in(e);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  int code = -1;
+  if (WIFEXITED(status)) code = WEXITSTATUS(status);
+  return {code, ss.str()};
+}
+
+const char* kSweep = R"(atmosphere: {ozone_column_du: 300}
+aerosol: {type: continental_average, optical_depth: 0.2}
+sun: {solar_zenith_deg: 30}
+surface: {albedo: 0.2}
+spectrum:
+  bins: [{from_nm: 290, to_nm: 400, step_nm: 10}, {from_nm: 400, to_nm: 2000, step_nm: 100}]
+  bands: [{name: uv, from_nm: 290, to_nm: 400}, {name: rest, from_nm: 400, to_nm: 2000}]
+sweep:
+  grid:
+    - {parameter: aerosol.optical_depth, range: {from: 0.05, to: 1.5, count: 6}}
+    - {parameter: sun.solar_zenith_deg, values: [0, 30, 50, 70]}
+  zip:
+    - {parameter: aerosol.single_scattering_albedo, values: [0.85, 0.95]}
+    - {parameter: surface.albedo, values: [0.1, 0.4]}
+)";
+
+/// Every variable of two files holds the same values (bit for bit) and the same attributes,
+/// except the creation time in the global `history`.
+void same_content(const fs::path& a, const fs::path& b) {
+  const auto names = solstrata::io::list_datasets(a);
+  REQUIRE(names == solstrata::io::list_datasets(b));
+  for (const std::string& n : names) {
+    const auto x = solstrata::io::read_variable(a, n), y = solstrata::io::read_variable(b, n);
+    INFO(n);
+    CHECK(x.dimensions == y.dimensions);
+    CHECK(x.values == y.values);
+    CHECK(x.texts == y.texts);
+    CHECK(x.attributes == y.attributes);
+  }
+  auto ga = solstrata::io::read_global_attributes(a), gb = solstrata::io::read_global_attributes(b);
+  ga.erase("history");
+  gb.erase("history");
+  CHECK(ga == gb);
+}
+
+}  // namespace
+
+TEST_CASE("a sweep gives the same file with one thread or two", "[app][sweep]") {
+  std::ofstream(dir() / "sweep.yaml") << kSweep;
+  REQUIRE(sh("run sweep.yaml -o one.h5 -j 1 -q").code == 0);
+  REQUIRE(sh("run sweep.yaml -o two.h5 -j 2 -q").code == 0);
+  same_content(dir() / "one.h5", dir() / "two.h5");
+  const auto v = solstrata::io::read_variable(dir() / "one.h5", "aerosol_effect_toa");
+  CHECK(v.dimensions == std::vector<std::string>{"scenario"});
+  CHECK(v.values.size() == 48);
+  const auto tau = solstrata::io::read_variable(dir() / "one.h5", "aerosol_optical_depth");
+  CHECK(tau.values[8] == Approx(0.34));  // scenario 8 = (tau index 1, zenith index 0, zip 0)
+}
+
+TEST_CASE("a sweep killed with SIGKILL resumes to the same file as a clean run", "[app][sweep]") {
+  std::ofstream(dir() / "sweep.yaml") << kSweep;
+  if (!fs::exists(dir() / "one.h5")) REQUIRE(sh("run sweep.yaml -o one.h5 -j 1 -q").code == 0);
+  // Crash injection: the process SIGKILLs itself after appending 7 records (test hook).
+  const Outcome killed = sh("run sweep.yaml -o resumed.h5 -j 2 -q", "SOLSTRATA_TEST_KILL_AFTER=7");
+  CHECK(killed.code != 0);
+  CHECK(fs::exists(dir() / "resumed.h5.partial"));
+  CHECK_FALSE(fs::exists(dir() / "resumed.h5"));
+  // A torn last record (the kill could land mid-write): cut a few bytes off the checkpoint.
+  fs::resize_file(dir() / "resumed.h5.partial", fs::file_size(dir() / "resumed.h5.partial") - 5);
+  // Without --resume the checkpoint is not overwritten.
+  const Outcome refused = sh("run sweep.yaml -o resumed.h5 -q");
+  CHECK(refused.code == 2);
+  CHECK(refused.err.find("--resume") != std::string::npos);
+  const Outcome resumed = sh("run sweep.yaml -o resumed.h5 -j 2 -q --resume");
+  INFO(resumed.err);
+  REQUIRE(resumed.code == 0);
+  CHECK_FALSE(fs::exists(dir() / "resumed.h5.partial"));
+  same_content(dir() / "one.h5", dir() / "resumed.h5");
+}
+
+TEST_CASE("resume is refused when the experiment changed", "[app][sweep]") {
+  std::ofstream(dir() / "changing.yaml") << kSweep;
+  CHECK(sh("run changing.yaml -o changing.h5 -q", "SOLSTRATA_TEST_KILL_AFTER=3").code != 0);
+  REQUIRE(fs::exists(dir() / "changing.h5.partial"));
+  std::string text = kSweep;
+  text.replace(text.find("albedo: 0.2"), 11, "albedo: 0.3");
+  std::ofstream(dir() / "changing.yaml") << text;
+  const Outcome o = sh("run changing.yaml -o changing.h5 -q --resume");
+  CHECK(o.code == 2);
+  CHECK(o.err.find("different experiment") != std::string::npos);
+  CHECK_FALSE(fs::exists(dir() / "changing.h5"));
+}
+
+TEST_CASE("check reports the scenario count of a sweep", "[app][sweep]") {
+  std::ofstream(dir() / "sweep.yaml") << kSweep;
+  const fs::path o = dir() / "check.txt";
+  const std::string cmd = "cd '" + dir().string() + "' && '" + SOLSTRATA_BINARY + "' check sweep.yaml > '" + o.string() + "'";
+  REQUIRE(std::system(cmd.c_str()) == 0);
+  std::ifstream in(o);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  CHECK(ss.str().find("48 (grid 6 x 4 x 2)") != std::string::npos);
+  CHECK(ss.str().find("est. output") != std::string::npos);
+}
