@@ -81,6 +81,30 @@ struct Experiment {
   OutputConfig output;                                 ///< where and what to write
 };
 
+/// Profiles already read, by path: a sweep reads its profile file once, not once per scenario.
+/// Thread-safe.
+class ProfileCache {
+ public:
+  ProfileCache();
+  ~ProfileCache();
+  ProfileCache(const ProfileCache&) = delete;
+  ProfileCache& operator=(const ProfileCache&) = delete;
+  /// The profile at `path`, reading it with `read` the first time.
+  template <class Read>
+  atmos::Profile get(const std::filesystem::path& path, Read&& read) {
+    if (const atmos::Profile* p = find(path)) return *p;
+    atmos::Profile p = read();
+    store(path, p);
+    return p;
+  }
+
+ private:
+  const atmos::Profile* find(const std::filesystem::path& path) const;
+  void store(const std::filesystem::path& path, const atmos::Profile& p);
+  struct Impl;
+  Impl* impl_;
+};
+
 /// Reads and validates an experiment file. Relative paths inside it (profile, solar spectrum)
 /// are taken relative to the file's directory; the output path relative to the working
 /// directory. Throws InputError (file, line, column, key, expected form) on any problem, before
@@ -90,7 +114,7 @@ Experiment load_experiment(const std::filesystem::path& path);
 /// As load_experiment, from text; `name` stands for the file in messages and `base_dir` resolves
 /// relative paths.
 Experiment parse_experiment(std::string text, const std::string& name,
-                            const std::filesystem::path& base_dir);
+                            const std::filesystem::path& base_dir, ProfileCache* profiles = nullptr);
 
 /// Every top-level key of an experiment file, with a one-line description (for help texts and
 /// the key reference test).

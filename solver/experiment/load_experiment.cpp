@@ -3,6 +3,9 @@
 #include <algorithm>
 #include <cmath>
 #include <fstream>
+#include <map>
+#include <memory>
+#include <mutex>
 #include <set>
 #include <sstream>
 
@@ -98,7 +101,7 @@ atmos::Profile read_profile_file(const fs::path& path) {
   return p;
 }
 
-void read_atmosphere(Section& s, Experiment& e, const fs::path& base) {
+void read_atmosphere(Section& s, Experiment& e, const fs::path& base, ProfileCache* cache) {
   const Document doc = s.document();
   const bool has_profile = s.has("profile"), has_levels = s.has("levels");
   if (has_profile && has_levels) {
@@ -124,7 +127,7 @@ void read_atmosphere(Section& s, Experiment& e, const fs::path& base) {
                                   "' does not exist; give a path relative to the experiment file, or '" +
                                   kBuiltinProfile + "'");
       }
-      e.profile = read_profile_file(path);
+      e.profile = cache ? cache->get(path, [&] { return read_profile_file(path); }) : read_profile_file(path);
       e.profile_origin = path.string();
     }
   }
@@ -367,7 +370,24 @@ const std::vector<std::pair<std::string, std::string>>& top_level_keys() {
   return keys;
 }
 
-Experiment parse_experiment(std::string text, const std::string& name, const fs::path& base_dir) {
+struct ProfileCache::Impl {
+  mutable std::mutex mutex;
+  std::map<std::string, std::unique_ptr<atmos::Profile>> profiles;
+};
+ProfileCache::ProfileCache() : impl_(new Impl) {}
+ProfileCache::~ProfileCache() { delete impl_; }
+const atmos::Profile* ProfileCache::find(const fs::path& path) const {
+  std::lock_guard<std::mutex> lock(impl_->mutex);
+  const auto it = impl_->profiles.find(path.string());
+  return it == impl_->profiles.end() ? nullptr : it->second.get();
+}
+void ProfileCache::store(const fs::path& path, const atmos::Profile& p) {
+  std::lock_guard<std::mutex> lock(impl_->mutex);
+  impl_->profiles.try_emplace(path.string(), std::make_unique<atmos::Profile>(p));
+}
+
+Experiment parse_experiment(std::string text, const std::string& name, const fs::path& base_dir,
+                            ProfileCache* profiles) {
   const Document doc = Document::parse(std::move(text), name);
   Section root = doc.root();
   Experiment e;
@@ -395,7 +415,7 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
   } else {
     if (root.has("atmosphere")) {
       Section a = root.subsection("atmosphere");
-      read_atmosphere(a, e, base_dir);
+      read_atmosphere(a, e, base_dir, profiles);
     } else {
       e.profile = atmos::make_us_standard_1976();
       e.profile_origin = "built-in U.S. Standard Atmosphere 1976 (generated)";

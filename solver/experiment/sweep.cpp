@@ -160,6 +160,7 @@ struct Study::Impl {
   fs::path base_dir;
   YAML::Node root;  // the file without its sweep section
   std::shared_ptr<Document> doc;
+  std::unique_ptr<ProfileCache> profiles = std::make_unique<ProfileCache>();
 };
 
 Study::Study() : impl_(std::make_unique<Impl>()) {}
@@ -274,7 +275,7 @@ Experiment Study::scenario(std::size_t i) const {
     }
   }
   try {
-    Experiment e = parse_experiment(emit(n), impl_->name, impl_->base_dir);
+    Experiment e = parse_experiment(emit(n), impl_->name, impl_->base_dir, impl_->profiles.get());
     e.text = impl_->text;
     return e;
   } catch (const InputError& ex) {
@@ -297,7 +298,7 @@ std::string Study::aerosol_free_key(std::size_t i) const {
 }
 
 Experiment Study::aerosol_free(std::size_t i) const {
-  Experiment e = parse_experiment(aerosol_free_key(i), impl_->name, impl_->base_dir);
+  Experiment e = parse_experiment(aerosol_free_key(i), impl_->name, impl_->base_dir, impl_->profiles.get());
   e.text = impl_->text;
   return e;
 }

@@ -1,0 +1,66 @@
+// Times a sweep of many aerosol scenarios of a 60-layer column over the default spectral grid,
+// with 1 and 2 worker threads. Prints scenarios per second and layer-solves per second (one
+// layer at one spectral point, aerosol-free companions included).
+#include <chrono>
+#include <cstdio>
+#include <cstdlib>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
+#include <thread>
+#include <unistd.h>
+
+#include "atmos/standard_atmosphere.hpp"
+#include "experiment/sweep.hpp"
+#include "experiment/sweep_run.hpp"
+
+using namespace solstrata;
+
+int main(int argc, char** argv) {
+  std::size_t side = 100;  // side x side scenarios
+  for (int i = 1; i < argc; ++i) {
+    if (!std::strcmp(argv[i], "--help") || !std::strcmp(argv[i], "-h")) {
+      std::printf("usage: sweep_bench [--side N]\nRuns an N x N aerosol grid (default 100 x 100 = 10,000 scenarios)\n"
+                  "of a 60-layer column on the default grid with 1 and 2 threads.\n");
+      return 0;
+    }
+    if (i + 1 < argc && !std::strcmp(argv[i], "--side")) side = std::strtoul(argv[++i], nullptr, 10);
+  }
+  const auto dir = std::filesystem::temp_directory_path() / ("solstrata_sweep_bench_" + std::to_string(::getpid()));
+  std::filesystem::create_directories(dir);
+  std::vector<double> alt;
+  for (int k = 60; k >= 0; --k) alt.push_back(80.0 * k * k / 3600.0);  // 61 levels, 60 layers, finer near the ground
+  std::ofstream(dir / "column60.yaml") << atmos::to_yaml_text(atmos::make_us_standard_1976(alt), "60-layer U.S. Standard Atmosphere (bench)");
+  std::ofstream(dir / "bench.yaml") << "atmosphere: {profile: column60.yaml}\n"
+                                       "aerosol: {type: continental_average, optical_depth: 0.1}\n"
+                                       "sun: {solar_zenith_deg: 35}\nsurface: {albedo: 0.2}\n"
+                                       "sweep:\n  grid:\n"
+                                       "    - {parameter: aerosol.optical_depth, range: {from: 0.01, to: 2, count: "
+                                    << side << ", spacing: log}}\n"
+                                       "    - {parameter: aerosol.single_scattering_albedo, range: {from: 0.7, to: 1, count: "
+                                    << side << "}}\n";
+  const experiment::Study study = experiment::Study::load(dir / "bench.yaml");
+  const std::size_t n = study.size();
+  const experiment::ScenarioResult probe = experiment::run_scenario(study, 0, false);
+  const double layers = double(probe.result.n_layers), points = double(probe.result.n_bins);
+  std::printf("# %zu scenarios, %g layers, %g spectral points, aerosol-free companions: %zu distinct\n", n, layers,
+              points, std::size_t{1});
+  std::vector<std::size_t> todo(n);
+  for (std::size_t i = 0; i < n; ++i) todo[i] = i;
+  double rate1 = 0;
+  for (unsigned threads : {1u, 2u}) {
+    experiment::SweepOptions o;
+    o.threads = threads;
+    double sink = 0;
+    const auto t0 = std::chrono::steady_clock::now();
+    experiment::run_scenarios(study, todo, o, [&](experiment::ScenarioResult&& r) { sink += r.effect.toa; });
+    const double s = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+    const double rate = double(n) / s;
+    if (threads == 1) rate1 = rate;
+    std::printf("sweep %u thread(s): %.1f scenarios per second, %.3g layer-solves per second (%.2f s)%s\n", threads,
+                rate, rate * layers * points, s, sink == 0 ? " " : "");
+    if (threads == 2) std::printf("parallel efficiency with 2 threads: %.0f %%\n", 100.0 * rate / (2 * rate1));
+  }
+  std::filesystem::remove_all(dir);
+  return 0;
+}
