@@ -190,9 +190,6 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
   opt.threads = o.jobs ? o.jobs : std::max(1u, std::thread::hardware_concurrency());
   opt.spectral = spectral;
   opt.stop = &g_stop;
-  g_stop.store(false);
-  std::signal(SIGINT, on_signal);
-  std::signal(SIGTERM, on_signal);
   const auto t0 = std::chrono::steady_clock::now();
   try {
     // Scenario 0 fixes the record layout; a fresh run records it first.
@@ -289,6 +286,10 @@ int check_command(const std::vector<std::string>& args) {
 int run_command(const std::vector<std::string>& args) {
   RunOptions o;
   if (int rc = parse("run", args, o, kRunHelp); rc >= 0) return rc;
+  // Ctrl-C / SIGTERM from here on stop a sweep cleanly (finished scenarios are kept).
+  g_stop.store(false);
+  std::signal(SIGINT, on_signal);
+  std::signal(SIGTERM, on_signal);
   std::optional<experiment::Study> study;
   try {
     study.emplace(experiment::Study::load(o.experiment));
@@ -313,6 +314,10 @@ int run_command(const std::vector<std::string>& args) {
     }
   }
   if (!study->plan().axes.empty()) return run_sweep(*study, e, o);
+  // A single run is short and leaves nothing to resume: signals act as usual again.
+  std::signal(SIGINT, SIG_DFL);
+  std::signal(SIGTERM, SIG_DFL);
+  if (g_stop.load()) return 130;
   experiment::RunResult r;
   try {
     r = experiment::run_experiment(e);
