@@ -9,23 +9,12 @@
 #include <cstring>
 
 #include "atmos/standard_atmosphere.hpp"
+#include "bench_common.hpp"
 #include "optics/column_optics.hpp"
 
 using namespace solstrata;
 
 namespace {
-
-template <class F>
-double best_seconds(int reps, F&& f) {
-  double best = 1e300;
-  for (int r = 0; r < reps; ++r) {
-    const auto t0 = std::chrono::steady_clock::now();
-    f();
-    const auto t1 = std::chrono::steady_clock::now();
-    best = std::min(best, std::chrono::duration<double>(t1 - t0).count());
-  }
-  return best;
-}
 
 }  // namespace
 
@@ -48,7 +37,7 @@ int main(int argc, char** argv) {
   for (bool tdep : {false, true}) {
     optics::OpticsOptions o;
     o.ozone_temperature_dependence = tdep;
-    const double t = best_seconds(reps, [&] { checksum += optics::build_column_optics(p, g, a, o).tau[0]; });
+    const double t = bench::best_seconds(reps, [&] { checksum += optics::build_column_optics(p, g, a, o).tau[0]; });
     std::printf("column optics%s: %.2f ns per layer-point\n",
                 tdep ? " with ozone temperature dependence" : "", 1e9 * t / n);
   }

@@ -14,50 +14,13 @@
 #include <vector>
 
 #include "rt/discrete_ordinates.hpp"
+#include "bench_common.hpp"
 #include "rt/two_stream.hpp"
 
 using namespace solstrata::rt;
+namespace bench = solstrata::bench;
 
 namespace {
-
-struct Problems {
-  std::size_t np, nl;
-  std::vector<double> tau, omega, g, mu0, sol, ad, af, d, f, u;
-};
-
-/// Random columns drawn like those of two_stream_bench (same generator and seed).
-Problems make(std::size_t np, std::size_t nl) {
-  Problems p{np, nl, {}, {}, {}, {}, {}, {}, {}, {}, {}, {}};
-  std::mt19937_64 rng(20261202);
-  std::uniform_real_distribution<double> U(0.0, 1.0);
-  for (std::size_t i = 0; i < np * nl; ++i) {
-    p.tau.push_back(0.5 * U(rng) * U(rng));
-    p.omega.push_back(0.5 + 0.5 * U(rng));
-    p.g.push_back(0.85 * U(rng));
-  }
-  for (std::size_t i = 0; i < np; ++i) {
-    p.mu0.push_back(0.05 + 0.95 * U(rng));
-    p.sol.push_back(1.0 + U(rng));
-    p.ad.push_back(0.3 * U(rng));
-    p.af.push_back(0.3 * U(rng));
-  }
-  p.d.assign((nl + 1) * np, 0.0);
-  p.f = p.d;
-  p.u = p.d;
-  return p;
-}
-
-template <class F>
-double best_seconds(int reps, F&& f) {
-  double best = 1e300;
-  for (int r = 0; r < reps; ++r) {
-    const auto t0 = std::chrono::steady_clock::now();
-    f();
-    const auto t1 = std::chrono::steady_clock::now();
-    best = std::min(best, std::chrono::duration<double>(t1 - t0).count());
-  }
-  return best;
-}
 
 /// An invented single-band demonstration column (not measured data): 10 equal-pressure layers of
 /// Rayleigh-like scattering (tau 0.1 in total, omega 1, isotropic g = 0 as a Henyey-Greenstein
@@ -155,14 +118,14 @@ int main(int argc, char** argv) {
       reps = std::atoi(argv[++i]);
   }
   np_ref = std::min(np_ref, np);
-  Problems p = make(np, nl);
+  bench::Problems p = bench::make_problems(np, nl);
   std::printf(
       "# %zu problems x %zu layers (reference: first %zu problems), best of %d, single thread\n",
       np, nl, np_ref, reps);
 
   Workspace work;
   const ColumnBatch all{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
-  const double t_de = best_seconds(std::max(reps, 5), [&] {
+  const double t_de = bench::best_seconds(std::max(reps, 5), [&] {
     solve_columns_unchecked(all, SolverOptions{}, {p.d, p.f, p.u}, work);
   });
   const double ns_de = 1e9 * t_de / (double(np) * double(nl));
@@ -187,7 +150,7 @@ int main(int argc, char** argv) {
     ReferenceOptions o;
     o.streams = streams;
     bool ok = true;
-    const double t = best_seconds(reps, [&] {
+    const double t = bench::best_seconds(reps, [&] {
       ok = solve_columns_reference(sub, o, {d, f, u}).ok && ok;
     });
     if (!ok) {

@@ -10,51 +10,15 @@
 #include <random>
 #include <vector>
 
+#include "bench_common.hpp"
 #include "rt/two_stream.hpp"
 
 using namespace solstrata::rt;
+namespace bench = solstrata::bench;
 
 namespace {
 
-struct Problems {
-  std::size_t np, nl;
-  std::vector<double> tau, omega, g, mu0, sol, ad, af, d, f, u;
-};
-
-Problems make(std::size_t np, std::size_t nl) {
-  Problems p{np, nl, {}, {}, {}, {}, {}, {}, {}, {}, {}, {}};
-  std::mt19937_64 rng(20261202);
-  std::uniform_real_distribution<double> U(0.0, 1.0);
-  for (std::size_t i = 0; i < np * nl; ++i) {
-    p.tau.push_back(0.5 * U(rng) * U(rng));
-    p.omega.push_back(0.5 + 0.5 * U(rng));
-    p.g.push_back(0.85 * U(rng));
-  }
-  for (std::size_t i = 0; i < np; ++i) {
-    p.mu0.push_back(0.05 + 0.95 * U(rng));
-    p.sol.push_back(1.0 + U(rng));
-    p.ad.push_back(0.3 * U(rng));
-    p.af.push_back(0.3 * U(rng));
-  }
-  p.d.assign((nl + 1) * np, 0.0);
-  p.f = p.d;
-  p.u = p.d;
-  return p;
-}
-
-template <class F>
-double best_seconds(int reps, F&& f) {
-  double best = 1e300;
-  for (int r = 0; r < reps; ++r) {
-    const auto t0 = std::chrono::steady_clock::now();
-    f();
-    const auto t1 = std::chrono::steady_clock::now();
-    best = std::min(best, std::chrono::duration<double>(t1 - t0).count());
-  }
-  return best;
-}
-
-double checksum(const Problems& p) {
+double checksum(const bench::Problems& p) {
   double s = 0;
   for (std::size_t i = 0; i < p.u.size(); ++i) s += p.u[i] + p.d[i] + p.f[i];
   return s;
@@ -77,7 +41,7 @@ int main(int argc, char** argv) {
     else if (i + 1 < argc && !std::strcmp(argv[i], "--reps")) reps = std::atoi(argv[++i]);
     else if (i + 1 < argc && !std::strcmp(argv[i], "--block")) block = std::strtoul(argv[++i], nullptr, 10);
   }
-  Problems p = make(np, nl);
+  bench::Problems p = bench::make_problems(np, nl);
   Workspace work;
   const double layer_solves = double(np) * double(nl);
   std::printf("# %zu problems x %zu layers, block %zu, best of %d, single thread\n", np, nl, block, reps);
@@ -87,14 +51,14 @@ int main(int argc, char** argv) {
     o.block_size = block;
     o.closure = c;
     const ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
-    const double t = best_seconds(reps, [&] { solve_columns_unchecked(in, o, {p.d, p.f, p.u}, work); });
+    const double t = bench::best_seconds(reps, [&] { solve_columns_unchecked(in, o, {p.d, p.f, p.u}, work); });
     std::printf("batched %s: %.2f ns per layer-solve\n", std::string(to_string(c)).c_str(), 1e9 * t / layer_solves);
   }
   {
     SolverOptions o;
     o.block_size = block;
     const ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
-    const double t = best_seconds(reps, [&] { (void)solve_columns(in, o, {p.d, p.f, p.u}, work); });
+    const double t = bench::best_seconds(reps, [&] { (void)solve_columns(in, o, {p.d, p.f, p.u}, work); });
     std::printf("batched delta_eddington with input validation: %.2f ns per layer-solve\n", 1e9 * t / layer_solves);
   }
   {
@@ -102,7 +66,7 @@ int main(int argc, char** argv) {
     SolverOptions o;
     o.block_size = block;
     std::vector<double> tau(nl), om(nl), g(nl), d(nl + 1), f(nl + 1), u(nl + 1);
-    const double t = best_seconds(std::max(1, reps / 3), [&] {
+    const double t = bench::best_seconds(std::max(1, reps / 3), [&] {
       for (std::size_t i = 0; i < np; ++i) {
         for (std::size_t l = 0; l < nl; ++l) {
           tau[l] = p.tau[l * np + i];

@@ -469,7 +469,7 @@ int accuracy_command(const std::vector<std::string>& args) {
       std::vector<std::string> names = a.band_names;
       names.push_back("broadband");
       for (const char* q : {"direct_down", "diffuse_down", "up", "net_down"}) {
-        const std::vector<double> ta = io::band_table(a, q), tr = io::band_table(c.reference, q);
+        const std::vector<double> ta = experiment::band_and_broadband(a, q), tr = experiment::band_and_broadband(c.reference, q);
         for (std::size_t b = 0; b < names.size(); ++b) {
           if (b + 1 < names.size() && std::string(q) != "diffuse_down") continue;  // per band: diffuse only
           double worst = 0;

@@ -54,24 +54,11 @@ void print_run_summary(std::ostream& os, const experiment::Experiment& e, const 
   std::snprintf(line, sizeof line, "%-12s %15s %9s %9s %9s %9s %8s %9s\n", "", "", "W m-2", "W m-2", "W m-2",
                 "W m-2", "", "atm W m-2");
   os << line;
-  const std::size_t n = r.n_levels, s = n - 1;
-  for (std::size_t b = 0; b <= r.n_bands; ++b) {
-    const bool bb = b == r.n_bands;
-    const auto at = [&](const std::vector<double>& bv, const std::vector<double>& v, std::size_t lev) {
-      return bb ? v[lev] : bv[b * n + lev];
-    };
-    const double top = at(r.band_direct_down, r.direct_down, 0) + at(r.band_diffuse_down, r.diffuse_down, 0);
-    const double dir = at(r.band_direct_down, r.direct_down, s), dif = at(r.band_diffuse_down, r.diffuse_down, s);
-    const double absorbed = at(r.band_net_down, r.net_down, 0) - at(r.band_net_down, r.net_down, s);
-    std::string range;
-    if (bb) {
-      range = r.bin_lower_nm.empty() ? "" : fmt("%g-", r.bin_lower_nm.front()) + fmt("%g", r.bin_upper_nm.back());
-    } else if (r.band_upper_nm[b] > 0) {
-      range = fmt("%g-", r.band_lower_nm[b]) + fmt("%g", r.band_upper_nm[b]);
-    }
-    std::snprintf(line, sizeof line, "%-12s %15s %9.2f %9.2f %9.2f %9.2f %8.4f %9.2f\n",
-                  (bb ? std::string("broadband") : r.band_names[b]).substr(0, 12).c_str(), range.c_str(), top, dir,
-                  dif, dir + dif, top > 0 ? (dir + dif) / top : 0.0, absorbed);
+  for (const experiment::BandSummary& x : experiment::band_summary(r)) {
+    const std::string range = x.upper_nm > 0 ? fmt("%g-", x.lower_nm) + fmt("%g", x.upper_nm) : std::string();
+    std::snprintf(line, sizeof line, "%-12s %15s %9.2f %9.2f %9.2f %9.2f %8.4f %9.2f\n", x.name.substr(0, 12).c_str(),
+                  range.c_str(), x.toa_down, x.surface_direct, x.surface_diffuse, x.surface_global, x.transmittance,
+                  x.absorbed_atmosphere);
     os << line;
   }
   os << "\nsurface: direct normal " << fmt("%.1f", r.direct_normal) << ", diffuse horizontal "

@@ -270,6 +270,40 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
 
 }  // namespace
 
+std::vector<double> band_and_broadband(const RunResult& r, const std::string& q) {
+  const std::vector<double>* band = &r.band_direct_down;
+  const std::vector<double>* bb = &r.direct_down;
+  if (q == "diffuse_down") band = &r.band_diffuse_down, bb = &r.diffuse_down;
+  if (q == "up") band = &r.band_diffuse_up, bb = &r.diffuse_up;
+  if (q == "net_down") band = &r.band_net_down, bb = &r.net_down;
+  std::vector<double> t(*band);
+  t.insert(t.end(), bb->begin(), bb->end());
+  return t;
+}
+
+std::vector<BandSummary> band_summary(const RunResult& r) {
+  const std::size_t n = r.n_levels, s = n - 1;
+  const std::vector<double> dir = band_and_broadband(r, "direct_down"), dif = band_and_broadband(r, "diffuse_down"),
+                            up = band_and_broadband(r, "up"), net = band_and_broadband(r, "net_down");
+  std::vector<BandSummary> rows;
+  for (std::size_t b = 0; b <= r.n_bands; ++b) {
+    const bool bb = b == r.n_bands;
+    BandSummary x;
+    x.name = bb ? "broadband" : r.band_names[b];
+    x.lower_nm = bb ? (r.bin_lower_nm.empty() ? 0.0 : r.bin_lower_nm.front()) : r.band_lower_nm[b];
+    x.upper_nm = bb ? (r.bin_upper_nm.empty() ? 0.0 : r.bin_upper_nm.back()) : r.band_upper_nm[b];
+    x.toa_down = dir[b * n] + dif[b * n];
+    x.surface_direct = dir[b * n + s];
+    x.surface_diffuse = dif[b * n + s];
+    x.surface_global = x.surface_direct + x.surface_diffuse;
+    x.transmittance = safe_ratio(x.surface_global, x.toa_down);
+    x.absorbed_atmosphere = net[b * n] - net[b * n + s];
+    x.toa_up = up[b * n];
+    rows.push_back(std::move(x));
+  }
+  return rows;
+}
+
 RunResult run_experiment(const Experiment& e) {
   const double mu0 = std::cos(e.solar_zenith_deg * std::numbers::pi / 180.0);
   const double distance = e.distance.resolve();

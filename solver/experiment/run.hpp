@@ -62,6 +62,24 @@ struct RunResult {
   double uv_index = 0;                   ///< dimensionless: UV index at the surface
 };
 
+/// One row of the per-band summary: what the terminal table and the CSV summary show.
+struct BandSummary {
+  std::string name;                 ///< band label, or "broadband"
+  double lower_nm = 0, upper_nm = 0;  ///< nm: band edges (0 when not stated)
+  double toa_down = 0;              ///< W m-2: downward flux at the top of the atmosphere
+  double surface_direct = 0, surface_diffuse = 0, surface_global = 0;  ///< W m-2: at the surface
+  double transmittance = 0;         ///< dimensionless: surface global / TOA down
+  double absorbed_atmosphere = 0;   ///< W m-2: net flux at the top minus at the surface
+  double toa_up = 0;                ///< W m-2: upward flux at the top of the atmosphere
+};
+
+/// The summary rows: every reporting band, then broadband.
+std::vector<BandSummary> band_summary(const RunResult& r);
+
+/// A level quantity ("direct_down", "diffuse_down", "up" or "net_down") per band and then
+/// broadband, [band * n_levels + level] with n_bands + 1 bands.
+std::vector<double> band_and_broadband(const RunResult& r, const std::string& quantity);
+
 /// Runs one experiment. Throws std::runtime_error when the physics modules reject an input that
 /// the loader could not check (the message names it).
 RunResult run_experiment(const Experiment& e);

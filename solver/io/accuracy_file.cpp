@@ -8,17 +8,6 @@
 
 namespace solstrata::io {
 
-std::vector<double> band_table(const experiment::RunResult& r, const std::string& q) {
-  const std::vector<double>* band = &r.band_direct_down;
-  const std::vector<double>* bb = &r.direct_down;
-  if (q == "diffuse_down") band = &r.band_diffuse_down, bb = &r.diffuse_down;
-  if (q == "up") band = &r.band_diffuse_up, bb = &r.diffuse_up;
-  if (q == "net_down") band = &r.band_net_down, bb = &r.net_down;
-  std::vector<double> t(*band);
-  t.insert(t.end(), bb->begin(), bb->end());
-  return t;
-}
-
 void write_accuracy_file(const std::filesystem::path& path, const experiment::Experiment& e,
                          const std::vector<AccuracyCase>& cases, int streams) {
   const experiment::RunResult& first = cases.front().two_stream;
@@ -40,7 +29,7 @@ void write_accuracy_file(const std::filesystem::path& path, const experiment::Ex
   for (const char* q : {"direct_down", "diffuse_down", "up", "net_down"}) {
     std::vector<double> ts, ref, diff, rel;
     for (const AccuracyCase& c : cases) {
-      const std::vector<double> a = band_table(c.two_stream, q), b = band_table(c.reference, q);
+      const std::vector<double> a = experiment::band_and_broadband(c.two_stream, q), b = experiment::band_and_broadband(c.reference, q);
       const double toa = c.reference.toa_down;
       for (std::size_t i = 0; i < a.size(); ++i) {
         ts.push_back(a[i]);

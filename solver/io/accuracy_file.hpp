@@ -23,8 +23,4 @@ struct AccuracyCase {
 void write_accuracy_file(const std::filesystem::path& path, const experiment::Experiment& e,
                          const std::vector<AccuracyCase>& cases, int streams);
 
-/// The per-band-and-level table of one quantity ("direct_down", "diffuse_down", "up", "net_down"),
-/// bands then broadband: [band * n_levels + level].
-std::vector<double> band_table(const experiment::RunResult& r, const std::string& quantity);
-
 }  // namespace solstrata::io

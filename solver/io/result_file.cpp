@@ -231,21 +231,10 @@ void write_summary_csv(const std::filesystem::path& path, const RunResult& r) {
   CsvTable t({"band", "lower_nm", "upper_nm", "toa_down_W_m-2", "surface_direct_W_m-2",
               "surface_diffuse_W_m-2", "surface_global_W_m-2", "transmittance", "absorbed_atmosphere_W_m-2",
               "toa_up_W_m-2"});
-  const std::size_t n = r.n_levels, s = n - 1;
-  for (std::size_t b = 0; b <= r.n_bands; ++b) {
-    const bool bb = b == r.n_bands;
-    const auto at = [&](const std::vector<double>& band_v, const std::vector<double>& v, std::size_t lev) {
-      return bb ? v[lev] : band_v[b * n + lev];
-    };
-    const double top = at(r.band_direct_down, r.direct_down, 0) + at(r.band_diffuse_down, r.diffuse_down, 0);
-    const double dir = at(r.band_direct_down, r.direct_down, s), dif = at(r.band_diffuse_down, r.diffuse_down, s);
-    const double net_top = at(r.band_net_down, r.net_down, 0), net_sfc = at(r.band_net_down, r.net_down, s);
-    t.add_row({bb ? std::string("broadband") : r.band_names[b],
-               csv_number(bb ? (r.bin_lower_nm.empty() ? 0.0 : r.bin_lower_nm.front()) : r.band_lower_nm[b]),
-               csv_number(bb ? (r.bin_upper_nm.empty() ? 0.0 : r.bin_upper_nm.back()) : r.band_upper_nm[b]),
-               csv_number(top), csv_number(dir), csv_number(dif), csv_number(dir + dif),
-               csv_number(top > 0 ? (dir + dif) / top : 0.0), csv_number(net_top - net_sfc),
-               csv_number(at(r.band_diffuse_up, r.diffuse_up, 0))});
+  for (const experiment::BandSummary& x : experiment::band_summary(r)) {
+    t.add_row({x.name, csv_number(x.lower_nm), csv_number(x.upper_nm), csv_number(x.toa_down),
+               csv_number(x.surface_direct), csv_number(x.surface_diffuse), csv_number(x.surface_global),
+               csv_number(x.transmittance), csv_number(x.absorbed_atmosphere), csv_number(x.toa_up)});
   }
   t.write(path);
 }
