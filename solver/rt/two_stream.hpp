@@ -15,7 +15,7 @@ struct SolverOptions {
   /// Two-stream closure; delta scaling follows the closure (only delta_eddington scales).
   Closure closure = Closure::delta_eddington;
   /// Problems solved together in one cache-sized block (the vector loop runs over a block).
-  std::size_t block_size = 64;
+  std::size_t block_size = 128;
 
   /// Empty when valid, else a sentence naming the field, its value and the rule.
   [[nodiscard]] std::string validate() const;
