@@ -7,6 +7,8 @@
 #include <cstring>
 #include <filesystem>
 #include <fstream>
+#include <set>
+#include <string>
 #include <thread>
 #include <unistd.h>
 
@@ -43,8 +45,10 @@ int main(int argc, char** argv) {
   const std::size_t n = study.size();
   const experiment::ScenarioResult probe = experiment::run_scenario(study, 0, false);
   const double layers = double(probe.result.n_layers), points = double(probe.result.n_bins);
+  std::set<std::string> clean;
+  for (std::size_t i = 0; i < n; ++i) clean.insert(study.aerosol_free_key(i));
   std::printf("# %zu scenarios, %g layers, %g spectral points, aerosol-free companions: %zu distinct\n", n, layers,
-              points, std::size_t{1});
+              points, clean.size());
   std::vector<std::size_t> todo(n);
   for (std::size_t i = 0; i < n; ++i) todo[i] = i;
   double rate1 = 0;
