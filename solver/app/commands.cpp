@@ -234,6 +234,7 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
     const io::CheckpointContents all = io::read_checkpoint(ckpt);
     io::write_sweep_file(out, study, templ, ckpt, all);
     fs::remove(ckpt, ec);
+    if (!e.output.csv.empty()) io::write_sweep_summary_csv(out, e.output.csv, study);
     if (!o.quiet) {
       const double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
       std::cout << "solstrata run: " << o.experiment << ": " << n << " scenarios";
@@ -241,7 +242,9 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
       std::cout << " in " << secs << " s on " << opt.threads << " thread(s)\n";
       if (with_effect) std::cout << "aerosol radiative effects: aerosol_effect_toa/surface/atmosphere (W m-2, negative = cooling)\n";
       std::cout << "caution: " << experiment::kSolarCaution << "\n";
-      std::cout << "wrote " << out.string() << "\n";
+      std::cout << "wrote " << out.string();
+      if (!e.output.csv.empty()) std::cout << " and " << e.output.csv.string();
+      std::cout << "\n";
     }
     return kExitOk;
   } catch (const experiment::InputError& ex) {

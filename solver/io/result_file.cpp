@@ -1,3 +1,4 @@
+#include <algorithm>
 #include "io/result_file.hpp"
 
 #include <chrono>
@@ -5,6 +6,7 @@
 #include <vector>
 
 #include "io/csv_writer.hpp"
+#include "io/hdf5_reader.hpp"
 #include "io/hdf5_writer.hpp"
 #include "io/result_fields.hpp"
 #include "io/sweep_file.hpp"
@@ -225,6 +227,40 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
                   "scenario index is row-major over sweep_axes (last axis fastest): reshape any (scenario, ...) "
                   "variable to sweep_shape + its other dimensions for an N-D grid");
   w.commit();
+}
+
+void write_sweep_summary_csv(const std::filesystem::path& sweep_file, const std::filesystem::path& csv,
+                             const experiment::Study& study) {
+  std::vector<std::string> header{"scenario"};
+  std::vector<std::vector<double>> columns;
+  for (const experiment::SweepParameter* p : study.plan().parameters()) {
+    header.push_back(p->path);
+    columns.push_back(read_variable(sweep_file, sweep_variable_name(p->path)).values);
+  }
+  const std::vector<std::string> present = list_datasets(sweep_file);
+  for (const char* v : {"global_horizontal_irradiance", "direct_normal_irradiance", "diffuse_horizontal_irradiance",
+                        "toa_flux_up", "planetary_albedo", "absorbed_atmosphere", "par_photon", "uv_index",
+                        "aerosol_effect_toa", "aerosol_effect_surface", "aerosol_effect_atmosphere"}) {
+    if (std::find(present.begin(), present.end(), v) == present.end()) continue;
+    const StoredVariable sv = read_variable(sweep_file, v);
+    std::string name(v);
+    if (sv.attributes.count("units")) {
+      name += '_';
+      name += text_attribute(sv.attributes, "units");
+    }
+    header.push_back(std::move(name));
+    columns.push_back(sv.values);
+  }
+  for (std::string& h : header) {
+    for (char& c : h) if (c == ' ') c = '_';
+  }
+  CsvTable t(header);
+  for (std::size_t i = 0; i < study.size(); ++i) {
+    std::vector<double> row{static_cast<double>(i)};
+    for (const auto& c : columns) row.push_back(c[i]);
+    t.add_row(row);
+  }
+  t.write(csv);
 }
 
 void write_summary_csv(const std::filesystem::path& path, const RunResult& r) {

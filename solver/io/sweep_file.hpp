@@ -27,6 +27,11 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
                       const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
                       const CheckpointContents& contents);
 
+/// Writes a flat CSV of a finished sweep file: one row per scenario with its swept parameters and
+/// the scalar surface, TOA and radiative-effect products. Atomic.
+void write_sweep_summary_csv(const std::filesystem::path& sweep_file, const std::filesystem::path& csv,
+                             const experiment::Study& study);
+
 /// Name of the coordinate variable of a swept parameter path ("aerosol.optical_depth" ->
 /// "aerosol_optical_depth").
 std::string sweep_variable_name(const std::string& path);

@@ -80,9 +80,18 @@ void same_content(const fs::path& a, const fs::path& b) {
 
 TEST_CASE("a sweep gives the same file with one thread or two", "[app][sweep]") {
   std::ofstream(dir() / "sweep.yaml") << kSweep;
-  REQUIRE(sh("run sweep.yaml -o one.h5 -j 1 -q").code == 0);
+  REQUIRE(sh("run sweep.yaml -o one.h5 -j 1 -q --csv one.csv").code == 0);
   REQUIRE(sh("run sweep.yaml -o two.h5 -j 2 -q").code == 0);
   same_content(dir() / "one.h5", dir() / "two.h5");
+  // The flat CSV: a header naming the swept parameters and products, one row per scenario.
+  std::ifstream csv(dir() / "one.csv");
+  std::string header, line;
+  std::getline(csv, header);
+  CHECK(header.find("scenario,aerosol.optical_depth,sun.solar_zenith_deg,aerosol.single_scattering_albedo,surface.albedo") == 0);
+  CHECK(header.find("aerosol_effect_toa_W_m-2") != std::string::npos);
+  int rows = 0;
+  while (std::getline(csv, line)) ++rows;
+  CHECK(rows == 48);
   const auto v = solstrata::io::read_variable(dir() / "one.h5", "aerosol_effect_toa");
   CHECK(v.dimensions == std::vector<std::string>{"scenario"});
   CHECK(v.values.size() == 48);
