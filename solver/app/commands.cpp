@@ -127,6 +127,21 @@ int parse(const std::string& cmd, const std::vector<std::string>& args, RunOptio
   return -1;
 }
 
+/// Loads and validates a study (every scenario); on bad input prints the message and sets `rc`.
+std::optional<experiment::Study> load_study(const std::string& file, int& rc) {
+  try {
+    experiment::Study study = experiment::Study::load(file);
+    study.validate_all();
+    return study;
+  } catch (const experiment::InputError& ex) {
+    std::cerr << ex.what() << "\n";
+  } catch (const std::exception& ex) {
+    std::cerr << file << ": error: " << ex.what() << "\n";
+  }
+  rc = kExitBadInput;
+  return std::nullopt;
+}
+
 /// Progress on stderr, at most five times a second, only when stderr is a terminal.
 class Progress {
  public:
@@ -262,9 +277,11 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
 int check_command(const std::vector<std::string>& args) {
   RunOptions o;
   if (int rc = parse("check", args, o, kCheckHelp); rc >= 0) return rc;
+  int rc = kExitOk;
+  const std::optional<experiment::Study> loaded = load_study(o.experiment, rc);
+  if (!loaded) return rc;
+  const experiment::Study& study = *loaded;
   try {
-    const experiment::Study study = experiment::Study::load(o.experiment);
-    study.validate_all();
     const experiment::RunResult probe = experiment::run_scenario(study, 0, study.base().output.spectral).result;
     std::size_t values = 0;
     for (const io::Field& f : io::result_fields(probe)) values += f.per_scenario ? f.values.size() * study.size() : f.values.size();
@@ -277,9 +294,6 @@ int check_command(const std::vector<std::string>& args) {
     }
     std::cout << "\n  est. output: " << (values * 8 + 65536) / 1024 << " KiB\n";
     return kExitOk;
-  } catch (const experiment::InputError& ex) {
-    std::cerr << ex.what() << "\n";
-    return kExitBadInput;
   } catch (const std::exception& ex) {
     std::cerr << o.experiment << ": error: " << ex.what() << "\n";
     return kExitBadInput;
@@ -293,17 +307,9 @@ int run_command(const std::vector<std::string>& args) {
   g_stop.store(false);
   std::signal(SIGINT, on_signal);
   std::signal(SIGTERM, on_signal);
-  std::optional<experiment::Study> study;
-  try {
-    study.emplace(experiment::Study::load(o.experiment));
-    study->validate_all();
-  } catch (const experiment::InputError& ex) {
-    std::cerr << ex.what() << "\n";
-    return kExitBadInput;
-  } catch (const std::exception& ex) {
-    std::cerr << o.experiment << ": error: " << ex.what() << "\n";
-    return kExitBadInput;
-  }
+  int rc = kExitOk;
+  const std::optional<experiment::Study> study = load_study(o.experiment, rc);
+  if (!study) return rc;
   experiment::Experiment e = study->base();
   if (!o.output.empty()) e.output.file = o.output;
   if (!o.csv.empty()) e.output.csv = o.csv;
@@ -409,17 +415,9 @@ int accuracy_command(const std::vector<std::string>& args) {
     }
   }
   if (file.empty()) return usage("accuracy", "missing the experiment file (EXPERIMENT.yaml)");
-  std::optional<experiment::Study> study;
-  try {
-    study.emplace(experiment::Study::load(file));
-    study->validate_all();
-  } catch (const experiment::InputError& ex) {
-    std::cerr << ex.what() << "\n";
-    return kExitBadInput;
-  } catch (const std::exception& ex) {
-    std::cerr << file << ": error: " << ex.what() << "\n";
-    return kExitBadInput;
-  }
+  int rc = kExitOk;
+  const std::optional<experiment::Study> study = load_study(file, rc);
+  if (!study) return rc;
   const std::size_t n = study->size();
   const std::size_t k = std::min(sample, n);
   std::vector<std::size_t> picks;
