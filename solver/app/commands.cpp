@@ -235,13 +235,28 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
       progress.step();
       todo.erase(todo.begin());
     }
+    // Snapshots: every so often (and when interrupted) the output file is rebuilt from the
+    // checkpoint, with fill values and scenario_complete = 0 for what is still to run, so finished
+    // results can be looked at during a long sweep. Each snapshot replaces the file atomically.
+    const char* snap_env = std::getenv("SOLSTRATA_SNAPSHOT_SECONDS");
+    const double snapshot_every = snap_env ? std::atof(snap_env) : 30.0;
+    auto last_snapshot = std::chrono::steady_clock::now();
+    const auto snapshot = [&] {
+      writer->flush();
+      io::write_sweep_file(out, study, templ, ckpt, io::read_checkpoint(ckpt), true);
+      last_snapshot = std::chrono::steady_clock::now();
+    };
     const std::size_t finished = experiment::run_scenarios(study, todo, opt, [&](experiment::ScenarioResult&& s) {
       record(s);
       progress.step();
+      if (std::chrono::duration<double>(std::chrono::steady_clock::now() - last_snapshot).count() >= snapshot_every)
+        snapshot();
     });
+    if (finished < todo.size()) snapshot();
     writer.reset();
     if (finished < todo.size()) {
-      std::cerr << "\nsolstrata run: interrupted; " << ckpt.string() << " keeps the finished scenarios. "
+      std::cerr << "\nsolstrata run: interrupted; " << ckpt.string() << " keeps the finished scenarios ("
+                << out.string() << " shows them, with scenario_complete = 0 for the rest). "
                 << "Continue with: solstrata run " << o.experiment << (o.output.empty() ? "" : " -o " + o.output)
                 << (spectral && !study.base().output.spectral ? " --spectral" : "") << " --resume\n";
       return 130;

@@ -29,7 +29,8 @@ Experiment keys: docs/experiment-keys.md; examples in config/.
 
 Run 'solstrata <command> --help' for the options of a command.
 
-exit codes: 0 success, 1 the run failed, 2 bad input or bad usage
+exit codes: 0 success, 1 the run failed, 2 bad input or bad usage, 130 a sweep was interrupted
+(resume it with run --resume)
 )";
 
 constexpr const char* kDemoHelp = R"(usage: solstrata demo [options]

@@ -71,6 +71,12 @@ void CheckpointWriter::append(std::uint64_t scenario, std::span<const double> va
   if (++written_ % kSyncEvery == 0) ::fsync(fileno(f_));
 }
 
+void CheckpointWriter::flush() {
+  if (std::fflush(f_) != 0 || ::fsync(fileno(f_)) != 0) {
+    throw OutputError(path_.string() + ": cannot flush the checkpoint: " + std::strerror(errno));
+  }
+}
+
 CheckpointContents read_checkpoint(const std::filesystem::path& path) {
   std::ifstream in(path, std::ios::binary);
   if (!in) throw OutputError(path.string() + ": cannot read the checkpoint");

@@ -38,6 +38,8 @@ class CheckpointWriter {
   /// `sync_every` records (and on destruction) it is also forced to disk (fsync).
   void append(std::uint64_t scenario, std::span<const double> values);
   [[nodiscard]] std::size_t records_written() const { return written_; }
+  /// Forces everything appended so far to disk (fsync), e.g. before the file is read back.
+  void flush();
 
  private:
   std::FILE* f_ = nullptr;

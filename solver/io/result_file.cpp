@@ -124,7 +124,9 @@ std::string unit_of_key(const std::string& path) {
 
 void write_sweep_file(const std::filesystem::path& path, const experiment::Study& study,
                       const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
-                      const CheckpointContents& contents) {
+                      const CheckpointContents& contents, bool partial) {
+  // netCDF's default fill value for doubles (NC_FILL_DOUBLE): readers show it as missing.
+  constexpr double kFill = 9.9692099683868690e+36;
   const std::size_t n = study.size();
   const bool with_effect = study.has_aerosol();
   const std::vector<Field> fields = result_fields(templ.result);
@@ -180,10 +182,17 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     if (s.rows) w.define_rows(s.f->name, dims_of(*s.f), {s.f->units, s.f->long_name, s.f->standard_name});
     else s.buffer.reserve(s.size * n);
   }
-  std::vector<double> toa(with_effect ? n : 0), sfc(with_effect ? n : 0), atm(with_effect ? n : 0);
+  std::vector<double> toa(with_effect ? n : 0, kFill), sfc(with_effect ? n : 0, kFill), atm(with_effect ? n : 0, kFill);
+  std::vector<int> complete(n, 0);
   for (std::size_t i = 0; i < n; ++i) {
     const auto it = contents.offsets.find(i);
-    if (it == contents.offsets.end()) throw OutputError(checkpoint.string() + ": scenario " + std::to_string(i) + " is missing");
+    if (it == contents.offsets.end()) {
+      if (!partial) throw OutputError(checkpoint.string() + ": scenario " + std::to_string(i) + " is missing");
+      for (Slot& s : slots)
+        if (!s.rows) s.buffer.insert(s.buffer.end(), s.size, kFill);
+      continue;
+    }
+    complete[i] = 1;
     const std::vector<double> rec = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
     for (Slot& s : slots) {
       const std::span<const double> part(rec.data() + s.offset, s.size);
@@ -210,8 +219,11 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     for (const char* v : {"aerosol_effect_toa", "aerosol_effect_surface", "aerosol_effect_atmosphere"})
       if (!coords.empty()) w.set_attribute(v, "coordinates", coords);
   }
+  w.write("scenario_complete", {"scenario"}, std::span<const int>(complete),
+          {"1", "1 when the scenario's results are in this file, 0 while it is still to be run", ""});
   write_global_attributes(w, study.base(), templ.result);
   w.set_attribute("", "sweep_scenarios", static_cast<int>(n));
+  w.set_attribute("", "sweep_complete", partial && contents.offsets.size() < n ? 0 : 1);
   w.set_attribute("", "sweep_kind", study.plan().from_list ? "list" : "grid");
   std::vector<double> shape;
   std::string axes;

@@ -18,14 +18,16 @@ std::vector<double> scenario_record(const experiment::ScenarioResult& s, bool wi
 /// Hash identifying a sweep's output content: experiment text and content options.
 std::uint64_t experiment_hash(const std::string& text, bool spectral);
 
-/// Builds the sweep's HDF5 file at `path` (atomically) from the records of a complete checkpoint.
+/// Builds the sweep's HDF5 file at `path` (atomically) from the records of a checkpoint.
 /// `templ` is any scenario's result (layout, band table, spectral bins). A leading "scenario"
-/// dimension, one coordinate variable per swept parameter, the grid shape as attributes, and the
-/// aerosol radiative effects when the study has aerosol. Throws OutputError when a scenario is
-/// missing from the checkpoint.
+/// dimension, one coordinate variable per swept parameter, the grid shape as attributes, the
+/// aerosol radiative effects when the study has aerosol, and `scenario_complete` (1 for each
+/// scenario with results). With `partial`, scenarios missing from the checkpoint are allowed: their
+/// values are netCDF's default fill value and the global attribute `sweep_complete` is 0 (a
+/// snapshot of a running or interrupted sweep); otherwise a missing scenario is an OutputError.
 void write_sweep_file(const std::filesystem::path& path, const experiment::Study& study,
                       const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
-                      const CheckpointContents& contents);
+                      const CheckpointContents& contents, bool partial = false);
 
 /// Writes a flat CSV of a finished sweep file: one row per scenario with its swept parameters and
 /// the scalar surface, TOA and radiative-effect products. Atomic.
