@@ -159,7 +159,8 @@ void beam_response_near_singularity(const KernelCoefficients& c, const LayerCore
 struct BlockArrays {
   double *r, *t, *rb, *tb;  // layer: diffuse R, T; beam R, T (per unit direct flux at its top)
   double *den;              // layer: 1/(1 - R alb_below)
-  double *dir, *dirt;       // level: delta-scaled and true direct beam, per unit at the top
+  double *dir;              // level: delta-scaled direct beam, per unit at the top
+  double *trans;            // problem: true (unscaled) beam transmission down to the current level
   double *alb, *src;        // level: diffuse albedo below, beam-generated upward source below
   double *dn;               // level: diffuse downward flux, per unit direct flux at the top
   double *inv_mu0;          // problem: 1/mu0
@@ -179,7 +180,7 @@ BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
   a.tb = take(nl);
   a.den = take(nl);
   a.dir = take(nl + 1);
-  a.dirt = take(nl + 1);
+  a.trans = take(1);
   a.alb = take(nl + 1);
   a.src = take(nl + 1);
   a.dn = take(nl + 1);
@@ -187,7 +188,7 @@ BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
   return a;
 }
 
-std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (10 * nl + 6) * nb; }
+std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (9 * nl + 6) * nb; }
 
 /// One step of the upward adding sweep over the problems of a block: combines a layer
 /// (r, t diffuse; rb, tb beam) with what lies below it (diffuse albedo alb_b, beam-generated
@@ -224,7 +225,6 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
   //    direct flux at the top.
   for (std::size_t j = 0; j < nb; ++j) {
     w.dir[j] = 1.0;
-    w.dirt[j] = 1.0;
   }
   for (std::size_t l = 0; l < nl; ++l) {
     const double* __restrict tau = in.tau.data() + l * np + p0;
@@ -235,9 +235,7 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
     double* __restrict rb = w.rb + l * nb;
     double* __restrict tb = w.tb + l * nb;
     const double* __restrict d0 = w.dir + l * nb;
-    const double* __restrict e0 = w.dirt + l * nb;
     double* __restrict d1 = w.dir + (l + 1) * nb;
-    double* __restrict e1 = w.dirt + (l + 1) * nb;
     int n_near = 0;
 #pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
@@ -251,9 +249,6 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
       rb[j] = rbj;
       tb[j] = tbj;
       d1[j] = d0[j] * t0;
-      // The true beam sees the unscaled tau; where delta scaling leaves tau unchanged (omega = 0
-      // or g <= 0) both are equal bit for bit, so a non-scattering column has exactly no diffuse light.
-      e1[j] = e0[j] * (kDelta ? exp_nonpositive(-tau[j] * inv_mu0[j]) : t0);
     }
     // Rare: a problem within kSingularBand of k mu0 = 1 gets the scalar interpolated form.
     if (n_near > 0) {
@@ -291,9 +286,9 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
   //    below (D' = (T D + T_beam dir + R src_below) den); upward = alb D' + src. Scale to the
   //    incident flux mu0 * solar and split off the true beam.
   const double* __restrict sol = in.solar.data() + p0;
+  double* __restrict trans = w.trans;
   for (std::size_t lev = 0; lev <= nl; ++lev) {
     const double* __restrict dir = w.dir + lev * nb;
-    const double* __restrict dirt = w.dirt + lev * nb;
     const double* __restrict alb = w.alb + lev * nb;
     const double* __restrict src = w.src + lev * nb;
     double* __restrict dn = w.dn + lev * nb;
@@ -305,6 +300,7 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
       for (std::size_t j = 0; j < nb; ++j) {
         const double s = mu0[j] * sol[j];
         dn[j] = 0.0;
+        trans[j] = 1.0;
         fd[j] = s;
         fdd[j] = 0.0;
         fu[j] = s * src[j];
@@ -318,13 +314,22 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
     const double* __restrict den = w.den + l * nb;
     const double* __restrict dabove = w.dn + l * nb;
     const double* __restrict dir_above = w.dir + l * nb;
+    const double* __restrict tau = in.tau.data() + l * np + p0;
 #pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
       const double d = (t[j] * dabove[j] + tb[j] * dir_above[j] + r[j] * src[j]) * den[j];
       const double s = mu0[j] * sol[j];
+      // The true beam sees the unscaled tau. Without delta scaling it is the scaled beam itself;
+      // with it, where scaling leaves tau unchanged (omega = 0 or g <= 0) the factors are equal bit
+      // for bit, so a non-scattering column has exactly no diffuse light.
+      double beam = dir[j];
+      if constexpr (kDelta) {
+        trans[j] *= exp_nonpositive(-tau[j] * inv_mu0[j]);
+        beam = trans[j];
+      }
       dn[j] = d;
-      fd[j] = s * dirt[j];
-      fdd[j] = s * ((dir[j] + d) - dirt[j]);
+      fd[j] = s * beam;
+      fdd[j] = s * ((dir[j] + d) - beam);
       fu[j] = s * (alb[j] * d + src[j]);
     }
   }
