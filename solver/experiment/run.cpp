@@ -53,13 +53,21 @@ void aggregate(const Fluxes& f, std::size_t n, std::size_t nlev, const std::vect
   dir.assign(groups.size() * nlev, 0.0);
   dif.assign(groups.size() * nlev, 0.0);
   up.assign(groups.size() * nlev, 0.0);
-  for (std::size_t b = 0; b < groups.size(); ++b) {
-    for (std::size_t p : groups[b]) {
-      for (std::size_t lev = 0; lev < nlev; ++lev) {
-        dir[b * nlev + lev] += f.dir[lev * n + p];
-        dif[b * nlev + lev] += f.dif[lev * n + p];
-        up[b * nlev + lev] += f.up[lev * n + p];
+  // Level outermost: the fluxes of one level are contiguous over problems.
+  for (std::size_t lev = 0; lev < nlev; ++lev) {
+    const double* fd = f.dir.data() + lev * n;
+    const double* ff = f.dif.data() + lev * n;
+    const double* fu = f.up.data() + lev * n;
+    for (std::size_t b = 0; b < groups.size(); ++b) {
+      double sd = 0, sf = 0, su = 0;
+      for (std::size_t p : groups[b]) {
+        sd += fd[p];
+        sf += ff[p];
+        su += fu[p];
       }
+      dir[b * nlev + lev] = sd;
+      dif[b * nlev + lev] = sf;
+      up[b * nlev + lev] = su;
     }
   }
 }
