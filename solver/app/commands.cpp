@@ -13,7 +13,6 @@
 #include "experiment/sweep.hpp"
 #include "experiment/sweep_run.hpp"
 #include "io/accuracy_file.hpp"
-#include "io/atomic_file.hpp"
 #include "io/checkpoint.hpp"
 #include "io/result_fields.hpp"
 #include "io/result_file.hpp"
@@ -259,7 +258,7 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
                 << out.string() << " shows them, with scenario_complete = 0 for the rest). "
                 << "Continue with: solstrata run " << o.experiment << (o.output.empty() ? "" : " -o " + o.output)
                 << (spectral && !study.base().output.spectral ? " --spectral" : "") << " --resume\n";
-      return 130;
+      return kExitInterrupted;
     }
     const io::CheckpointContents all = io::read_checkpoint(ckpt);
     io::write_sweep_file(out, study, templ, ckpt, all);
@@ -341,7 +340,7 @@ int run_command(const std::vector<std::string>& args) {
   // A single run is short and leaves nothing to resume: signals act as usual again.
   std::signal(SIGINT, SIG_DFL);
   std::signal(SIGTERM, SIG_DFL);
-  if (g_stop.load()) return 130;
+  if (g_stop.load()) return kExitInterrupted;
   experiment::RunResult r;
   try {
     r = experiment::run_experiment(e);

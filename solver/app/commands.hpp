@@ -11,6 +11,7 @@ enum ExitCode : int {
   kExitOk = 0,         ///< success
   kExitRunFailed = 1,  ///< the run failed (solver or output error)
   kExitBadInput = 2,   ///< bad input file, bad value or bad usage
+  kExitInterrupted = 130,  ///< a sweep stopped by SIGINT/SIGTERM; resumable with --resume
 };
 
 /// `solstrata run EXP.yaml [-o OUT.h5] [--csv FILE] [--spectral] [--quiet]`

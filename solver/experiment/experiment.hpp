@@ -3,6 +3,7 @@
 
 #include <filesystem>
 #include <map>
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -102,7 +103,7 @@ class ProfileCache {
   const atmos::Profile* find(const std::filesystem::path& path) const;
   void store(const std::filesystem::path& path, const atmos::Profile& p);
   struct Impl;
-  Impl* impl_;
+  std::unique_ptr<Impl> impl_;
 };
 
 /// Reads and validates an experiment file. Relative paths inside it (profile, solar spectrum)
@@ -110,6 +111,9 @@ class ProfileCache {
 /// directory. Throws InputError (file, line, column, key, expected form) on any problem, before
 /// any work is done.
 Experiment load_experiment(const std::filesystem::path& path);
+
+/// The text of an experiment file. Throws InputError naming the file when it cannot be read.
+std::string read_experiment_text(const std::filesystem::path& path);
 
 /// As load_experiment, from text; `name` stands for the file in messages and `base_dir` resolves
 /// relative paths.

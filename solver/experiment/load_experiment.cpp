@@ -374,8 +374,8 @@ struct ProfileCache::Impl {
   mutable std::mutex mutex;
   std::map<std::string, std::unique_ptr<atmos::Profile>> profiles;
 };
-ProfileCache::ProfileCache() : impl_(new Impl) {}
-ProfileCache::~ProfileCache() { delete impl_; }
+ProfileCache::ProfileCache() : impl_(std::make_unique<Impl>()) {}
+ProfileCache::~ProfileCache() = default;
 const atmos::Profile* ProfileCache::find(const fs::path& path) const {
   std::lock_guard<std::mutex> lock(impl_->mutex);
   const auto it = impl_->profiles.find(path.string());
@@ -455,14 +455,18 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
   return e;
 }
 
-Experiment load_experiment(const fs::path& path) {
+std::string read_experiment_text(const fs::path& path) {
   std::ifstream in(path, std::ios::binary);
   if (!in) {
     throw InputError(path.string(), {}, "", "cannot open the experiment file (does it exist and is it readable?)");
   }
   std::stringstream ss;
   ss << in.rdbuf();
-  return parse_experiment(ss.str(), path.string(), path.parent_path());
+  return ss.str();
+}
+
+Experiment load_experiment(const fs::path& path) {
+  return parse_experiment(read_experiment_text(path), path.string(), path.parent_path());
 }
 
 }  // namespace solstrata::experiment

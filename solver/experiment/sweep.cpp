@@ -169,11 +169,7 @@ Study& Study::operator=(Study&&) noexcept = default;
 Study::~Study() = default;
 
 Study Study::load(const fs::path& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError(path.string(), {}, "", "cannot open the experiment file (does it exist and is it readable?)");
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return parse(ss.str(), path.string(), path.parent_path());
+  return parse(read_experiment_text(path), path.string(), path.parent_path());
 }
 
 Study Study::parse(std::string text, const std::string& name, const fs::path& base_dir) {

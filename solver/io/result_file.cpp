@@ -136,13 +136,17 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
 
   // Swept parameters as coordinates along the scenario dimension.
   std::string coords;
-  for (const experiment::SweepParameter* p : study.plan().parameters()) {
-    std::vector<double> v(n);
-    for (std::size_t i = 0; i < n; ++i)
-      for (const auto& [k, x] : study.plan().assignment(i))
-        if (k == p->path) v[i] = x;
+  // assignment(i) lists the parameters in parameters() order: one pass fills every column.
+  const std::vector<const experiment::SweepParameter*> params = study.plan().parameters();
+  std::vector<std::vector<double>> swept(params.size(), std::vector<double>(n));
+  for (std::size_t i = 0; i < n; ++i) {
+    const auto a = study.plan().assignment(i);
+    for (std::size_t k = 0; k < params.size(); ++k) swept[k][i] = a[k].second;
+  }
+  for (std::size_t k = 0; k < params.size(); ++k) {
+    const experiment::SweepParameter* p = params[k];
     const std::string name = sweep_variable_name(p->path);
-    w.write(name, {"scenario"}, v, {unit_of_key(p->path), "swept parameter " + p->path, ""});
+    w.write(name, {"scenario"}, swept[k], {unit_of_key(p->path), "swept parameter " + p->path, ""});
     w.set_attribute(name, "parameter_path", p->path);
     coords += (coords.empty() ? "" : " ") + name;
   }

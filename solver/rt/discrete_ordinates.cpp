@@ -67,22 +67,8 @@ Streams make_streams(int n) {
   s.n = n;
   s.mu.resize(n);
   s.w.resize(n);
-  for (int i = 0; i < n; ++i) {
-    double x = std::cos(std::numbers::pi * (i + 0.75) / (n + 0.5));
-    double dp = 1.0;
-    for (int it = 0; it < 100; ++it) {
-      double p0 = 1.0, p1 = x;
-      for (int l = 2; l <= n; ++l) {
-        const double p2 = ((2.0 * l - 1.0) * x * p1 - (l - 1.0) * p0) / l;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = n * (x * p1 - p0) / (x * x - 1.0);
-      const double dx = p1 / dp;
-      x -= dx;
-      if (std::abs(dx) < 1e-16) break;
-    }
-    // recompute the derivative at the converged node for the weight
+  // P_n(x) and its derivative, by the three-term recurrence (Bonnet).
+  const auto legendre_n = [n](double x, double& dp) {
     double p0 = 1.0, p1 = x;
     for (int l = 2; l <= n; ++l) {
       const double p2 = ((2.0 * l - 1.0) * x * p1 - (l - 1.0) * p0) / l;
@@ -90,6 +76,17 @@ Streams make_streams(int n) {
       p1 = p2;
     }
     dp = n * (x * p1 - p0) / (x * x - 1.0);
+    return p1;
+  };
+  for (int i = 0; i < n; ++i) {
+    double x = std::cos(std::numbers::pi * (i + 0.75) / (n + 0.5));
+    double dp = 1.0;
+    for (int it = 0; it < 100; ++it) {
+      const double dx = legendre_n(x, dp) / dp;
+      x -= dx;
+      if (std::abs(dx) < 1e-16) break;
+    }
+    (void)legendre_n(x, dp);  // the derivative at the converged node, for the weight
     const int k = n - 1 - i;  // nodes come out decreasing in x; store increasing mu
     s.mu[k] = 0.5 * (x + 1.0);
     s.w[k] = 0.5 * 2.0 / ((1.0 - x * x) * dp * dp);
