@@ -134,7 +134,7 @@ TEST_CASE("clear-sky surface irradiance at overhead sun is in the physically exp
   // Run with the built-in spectrum on the default grid and with the ASTM G173 extraterrestrial
   // spectrum (test data) on 1 nm bins.
   const atmos::Profile p = atmos::make_us_standard_1976();
-  const auto g173 = spectrum::read_spectrum_csv(std::string(SOLSTRATA_SHARED_DATA) + "/astm-g173-03.csv",
+  const auto g173 = spectrum::read_spectrum_csv(std::string(SOLSTRATA_TEST_DATA) + "/astm-g173-03.csv",
                                                 "extraterrestrial_W_m2_nm");
   for (int source = 0; source < 2; ++source) {
     const spectrum::Grid g = source == 0 ? spectrum::make_grid(spectrum::default_segments(),

@@ -68,7 +68,7 @@ TEST_CASE("ozone absorption of the solar beam agrees with Lacis and Hansen", "[o
   const double a_uv = 1.082 * x / std::pow(1 + 138.6 * x, 0.805) + 0.0658 * x / (1 + std::pow(103.6 * x, 3));
   const double a_vis = 0.02118 * x / (1 + 0.042 * x + 0.000323 * x * x);
   const auto e490 =
-      solstrata::spectrum::read_spectrum_csv(std::string(SOLSTRATA_SHARED_DATA) + "/astm-e490-00a.csv");
+      solstrata::spectrum::read_spectrum_csv(std::string(SOLSTRATA_TEST_DATA) + "/astm-e490-00a.csv");
   const double total = solstrata::spectrum::integrate(e490, 0, 2e6);
   double absorbed = solstrata::spectrum::integrate(e490, 0, 230);
   for (double l = 230; l < 1100; l += 0.5) {

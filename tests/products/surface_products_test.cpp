@@ -64,7 +64,7 @@ std::vector<std::vector<double>> read_csv(const std::string& path) {
 TEST_CASE("PAR photon conversion of the G173 extraterrestrial spectrum is 4.553 umol per joule", "[products]") {
   // shared/checkvalues.md section 5: 4.553 umol J-1 for the ASTM G173 extraterrestrial column
   // over 400-700 nm [computed]; the usual daylight figure is about 4.57 (McCree 1972, from memory).
-  const auto rows = read_csv(std::string(SOLSTRATA_SHARED_DATA) + "/astm-g173-03.csv");
+  const auto rows = read_csv(std::string(SOLSTRATA_TEST_DATA) + "/astm-g173-03.csv");
   REQUIRE(rows.size() > 1000);
   double energy = 0, photons = 0;
   for (std::size_t i = 0; i + 1 < rows.size(); ++i) {

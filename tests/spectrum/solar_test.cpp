@@ -11,7 +11,7 @@ using namespace solstrata::spectrum;
 
 namespace {
 
-const std::string kData = SOLSTRATA_SHARED_DATA;
+const std::string kData = SOLSTRATA_TEST_DATA;
 
 TabulatedSpectrum e490() { return read_spectrum_csv(kData + "/astm-e490-00a.csv"); }
 TabulatedSpectrum g173() {
