@@ -12,6 +12,8 @@ namespace solstrata::atmos {
 inline constexpr double kDobsonUnit = 2.6868e16;
 /// mol-1: Avogadro constant (CODATA 2018, exact).
 inline constexpr double kAvogadro = 6.02214076e23;
+/// mol/mol: volume fraction of O2 in dry air, 0.20946 (U.S. Standard Atmosphere 1976, Table 3).
+inline constexpr double kO2VolumeFraction = 0.20946;
 /// g mol-1: molar mass of water.
 inline constexpr double kWaterMolarMass = 18.01528;
 

@@ -4,6 +4,7 @@
 #include <sstream>
 #include <stdexcept>
 
+#include "optics/gas_absorption.hpp"
 #include "optics/mixing.hpp"
 #include "optics/ozone.hpp"
 #include "optics/rayleigh.hpp"
@@ -37,10 +38,34 @@ ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::
   const std::vector<double> share =
       options.aerosol ? layer_fractions(aerosol, p) : std::vector<double>(p.n_layers(), 0.0);
 
-  const std::vector<spectrum::SpectralPoint> points = spectrum::plain_points(grid);
+  // Gas columns per layer (molecules cm-2) and the layer states for the tables.
+  LayerState state;
+  for (std::size_t l = 0; l < p.n_layers(); ++l) {
+    state.pressure_hpa.push_back(0.5 * (p.pressure_hpa[l] + p.pressure_hpa[l + 1]));
+    state.temperature_k.push_back(cols.temperature_k[l]);
+    state.h2o_vmr.push_back(p.h2o_ppmv.empty() ? 0.0 : 0.5e-6 * (p.h2o_ppmv[l] + p.h2o_ppmv[l + 1]));
+  }
+  std::vector<GasColumn> gases;
+  for (const auto& t : options.gas_tables) {
+    GasColumn g{t, {}};
+    for (std::size_t l = 0; l < p.n_layers(); ++l) {
+      if (t->gas == "H2O") {
+        g.molecules.push_back(cols.h2o_cm[l] * atmos::kAvogadro / atmos::kWaterMolarMass);
+      } else if (t->gas == "O2") {
+        g.molecules.push_back(atmos::kO2VolumeFraction * cols.air[l]);
+      } else if (t->gas == "CO2") {
+        g.molecules.push_back(1e-6 * p.co2_ppmv * cols.air[l]);
+      } else {
+        throw std::invalid_argument("gas table " + t->origin + " is for '" + t->gas + "'; known gases are H2O, O2 and CO2");
+      }
+    }
+    gases.push_back(std::move(g));
+  }
+  const GasPoints gp = gas_points(grid, state, gases);
+
   ColumnOptics o;
   o.n_layers = p.n_layers();
-  o.n_points = points.size();
+  o.n_points = gp.n_points();
   const std::size_t np = o.n_points;
   o.tau.assign(o.n_layers * np, 0.0);
   o.omega.assign(o.n_layers * np, 0.0);
@@ -48,31 +73,42 @@ ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::
   o.column_tau_rayleigh.assign(np, 0.0);
   o.column_tau_ozone.assign(np, 0.0);
   o.column_tau_aerosol.assign(np, 0.0);
-  for (std::size_t k = 0; k < np; ++k) {
-    const double lam = grid.bins()[points[k].bin].center_nm;
-    o.point_bin.push_back(points[k].bin);
-    o.point_weight.push_back(points[k].weight);
-    o.wavelength_nm.push_back(lam);
+  o.column_tau_gas.assign(np, 0.0);
+  // Per bin: Rayleigh, ozone and aerosol optics, the same for every k-term of the bin.
+  const std::size_t nb = grid.size(), nl = o.n_layers;
+  std::vector<double> tr(nb * nl), to(nb * nl), ta(nb * nl), wa(nb), ga(nb);
+  for (std::size_t b = 0; b < nb; ++b) {
+    const double lam = grid.bins()[b].center_nm;
     const double sigma_r = options.rayleigh ? rayleigh_cross_section(lam, p.co2_ppmv) : 0.0;
     const double sigma_o3 = options.ozone ? ozone_cross_section(lam) : 0.0;
     const double tau_a = options.aerosol ? aerosol.column_tau(lam) : 0.0;
-    const double w_a = aerosol.omega_at(lam), g_a = aerosol.g_at(lam);
-    for (std::size_t l = 0; l < o.n_layers; ++l) {
-      OpticsMixer mix;
-      const double tr = sigma_r * cols.air[l];
-      mix.add_rayleigh(tr);
-      o.column_tau_rayleigh[k] += tr;
+    wa[b] = aerosol.omega_at(lam);
+    ga[b] = aerosol.g_at(lam);
+    for (std::size_t l = 0; l < nl; ++l) {
+      tr[b * nl + l] = sigma_r * cols.air[l];
       if (options.ozone) {
-        const double s = options.ozone_temperature_dependence
-                             ? ozone_cross_section(lam, cols.temperature_k[l])
-                             : sigma_o3;
-        const double to = s * cols.ozone_du[l] * atmos::kDobsonUnit;
-        mix.add_absorber(to);
-        o.column_tau_ozone[k] += to;
+        const double s = options.ozone_temperature_dependence ? ozone_cross_section(lam, cols.temperature_k[l]) : sigma_o3;
+        to[b * nl + l] = s * cols.ozone_du[l] * atmos::kDobsonUnit;
       }
-      const double ta = tau_a * share[l];
-      mix.add(ta, w_a, g_a);
-      o.column_tau_aerosol[k] += ta;
+      ta[b * nl + l] = tau_a * share[l];
+    }
+  }
+  for (std::size_t k = 0; k < np; ++k) {
+    const std::size_t b = gp.points[k].bin;
+    o.point_bin.push_back(b);
+    o.point_weight.push_back(gp.points[k].weight);
+    o.wavelength_nm.push_back(grid.bins()[b].center_nm);
+    for (std::size_t l = 0; l < nl; ++l) {
+      OpticsMixer mix;
+      mix.add_rayleigh(tr[b * nl + l]);
+      o.column_tau_rayleigh[k] += tr[b * nl + l];
+      mix.add_absorber(to[b * nl + l]);
+      o.column_tau_ozone[k] += to[b * nl + l];
+      const double tg = gp.tau[l * np + k];
+      mix.add_absorber(tg);
+      o.column_tau_gas[k] += tg;
+      mix.add(ta[b * nl + l], wa[b], ga[b]);
+      o.column_tau_aerosol[k] += ta[b * nl + l];
       const LayerOptics r = mix.result();
       o.tau[l * np + k] = r.tau;
       o.omega[l * np + k] = r.omega;

@@ -2,11 +2,13 @@
 #pragma once
 
 #include <cstddef>
+#include <memory>
 #include <string>
 #include <vector>
 
 #include "atmos/profile.hpp"
 #include "optics/aerosol.hpp"
+#include "optics/ktable.hpp"
 #include "spectrum/grid.hpp"
 
 namespace solstrata::optics {
@@ -23,13 +25,16 @@ struct OpticsOptions {
   bool ozone_temperature_dependence = false;
   /// DU: when > 0, the profile's ozone is rescaled to this total column first
   double total_ozone_du = 0.0;
+  /// k-distribution tables of the absorbing gases (H2O, O2, CO2); each adds k-terms as spectral
+  /// points (optics/gas_absorption.hpp). Empty: no gas absorption but ozone.
+  std::vector<std::shared_ptr<const KTable>> gas_tables;
 
   /// Empty when valid, else a sentence naming the field, its value and the rule.
   [[nodiscard]] std::string validate() const;
 };
 
-/// Column optics on a set of spectral points (now one per bin, weight 1; later (bin, k-term)
-/// pairs). Per-layer arrays use the solver's layout [layer * n_points + point], layer 0 at the
+/// Column optics on a set of spectral points: one per bin (weight 1) where no gas table
+/// absorbs, else one per k-term (weights of a bin sum to 1). Per-layer arrays use the solver's layout [layer * n_points + point], layer 0 at the
 /// top, so the points can be passed as the "problems" of one rt::solve_columns call.
 struct ColumnOptics {
   std::size_t n_layers = 0;
@@ -43,12 +48,13 @@ struct ColumnOptics {
   std::vector<double> column_tau_rayleigh;  ///< dimensionless: column Rayleigh optical depth [point]
   std::vector<double> column_tau_ozone;     ///< dimensionless: column ozone optical depth [point]
   std::vector<double> column_tau_aerosol;   ///< dimensionless: column aerosol optical depth [point]
+  std::vector<double> column_tau_gas;       ///< dimensionless: column k-term gas optical depth [point]
 };
 
 /// Builds the optics of `profile` at every bin of `grid` (optics at each bin's centre):
 /// Rayleigh tau = cross section x layer air column; ozone tau = cross section (optionally at the
 /// layer temperature) x layer ozone column; aerosol tau = Ångström column value x layer share,
-/// with its omega and g; mixed by OpticsMixer. Throws std::invalid_argument (message names the
+/// with its omega and g; gases of `options.gas_tables` as k-terms (gas_points); mixed by OpticsMixer. Throws std::invalid_argument (message names the
 /// field) when the profile, grid, aerosol or options are invalid, or a bin centre is outside
 /// the optics' range (230 nm .. 100 um).
 ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::Grid& grid,
