@@ -9,6 +9,7 @@
 #include <set>
 #include <sstream>
 
+#include "atmos/humidity.hpp"
 #include "atmos/standard_atmosphere.hpp"
 #include "experiment/experiment.hpp"
 #include "experiment/yaml_reader.hpp"
@@ -60,7 +61,24 @@ atmos::Profile read_levels(Section& s) {
   const LocatedNumbers al = s.number_list("altitude_km", Range::open(-1.0, 200.0), 2, "km");
   LocatedNumbers oz, h2o;
   if (s.has("ozone_ppmv")) oz = s.number_list("ozone_ppmv", Range::closed(0.0, 1000.0), 2, "ppmv");
-  if (s.has("h2o_ppmv")) h2o = s.number_list("h2o_ppmv", Range::closed(0.0, 1e5), 2, "ppmv");
+  // Water vapour: at most one of three forms, converted to ppmv at each level below.
+  const char* const humidity_keys[] = {"h2o_ppmv", "specific_humidity_kg_kg", "relative_humidity_percent"};
+  std::string humidity_key;
+  for (const char* k : humidity_keys) {
+    if (!s.has(k)) continue;
+    if (!humidity_key.empty()) {
+      throw s.error(k, "give the water vapour once: '" + humidity_key + "' is already given (choose one of h2o_ppmv, "
+                       "specific_humidity_kg_kg, relative_humidity_percent)");
+    }
+    humidity_key = k;
+  }
+  if (humidity_key == "h2o_ppmv") h2o = s.number_list("h2o_ppmv", Range::closed(0.0, 1e5), 2, "ppmv");
+  if (humidity_key == "specific_humidity_kg_kg") {
+    h2o = s.number_list("specific_humidity_kg_kg", Range::closed(0.0, 0.1), 2, "kg/kg");
+  }
+  if (humidity_key == "relative_humidity_percent") {
+    h2o = s.number_list("relative_humidity_percent", Range::closed(0.0, 100.0), 2, "%");
+  }
   s.check_no_unknown_keys();
   const auto same_length = [&](const LocatedNumbers& v) {
     if (!v.values.empty() && v.values.size() != pr.values.size()) {
@@ -80,6 +98,16 @@ atmos::Profile read_levels(Section& s) {
   p.altitude_km = al.values;
   p.ozone_ppmv = oz.values;
   p.h2o_ppmv = h2o.values;
+  for (std::size_t i = 0; i < p.h2o_ppmv.size(); ++i) {
+    try {
+      if (humidity_key == "specific_humidity_kg_kg") p.h2o_ppmv[i] = atmos::ppmv_from_specific_humidity(h2o.values[i]);
+      if (humidity_key == "relative_humidity_percent") {
+        p.h2o_ppmv[i] = atmos::ppmv_from_relative_humidity(h2o.values[i], p.temperature_k[i], p.pressure_hpa[i]);
+      }
+    } catch (const std::invalid_argument& ex) {
+      throw doc.error(h2o.at(i), std::string(ex.what()) + " (level " + std::to_string(i) + ")");
+    }
+  }
   return p;
 }
 
@@ -135,6 +163,7 @@ void read_atmosphere(Section& s, Experiment& e, const fs::path& base, ProfileCac
   const auto lat = s.optional_number("latitude_deg", e.profile.latitude_deg, Range::closed(-90, 90), "degrees");
   const auto ozone = s.optional_number("ozone_column_du", 0.0, Range::open_closed(0, 1000), "DU");
   const auto psfc = s.optional_number("surface_pressure_hpa", 0.0, Range::open_closed(0, 1200), "hPa");
+  const auto pwv = s.optional_number("precipitable_water_cm", 0.0, Range::open_closed(0, 15), "cm");
   e.optics.rayleigh = s.optional_bool("rayleigh", true).value;
   e.optics.ozone = s.optional_bool("ozone", true).value;
   e.optics.ozone_temperature_dependence = s.optional_bool("ozone_temperature_dependence", false).value;
@@ -151,6 +180,15 @@ void read_atmosphere(Section& s, Experiment& e, const fs::path& base, ProfileCac
     // Scales the whole column mass: every level pressure by p_sfc / p_profile_surface.
     const double f = psfc.value / e.profile.pressure_hpa.back();
     for (double& p : e.profile.pressure_hpa) p *= f;
+  }
+  if (pwv.given()) {
+    // After the pressure scaling, so that the column is exactly the value asked for.
+    if (atmos::total_h2o_cm(e.profile) > 0.0) {
+      atmos::scale_h2o_to(e.profile, pwv.value);
+    } else {
+      e.profile.h2o_ppmv = atmos::default_h2o_ppmv(e.profile, pwv.value);
+      e.profile_origin += "; water vapour: default shape (density scale height 2 km)";
+    }
   }
 }
 

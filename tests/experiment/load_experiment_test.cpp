@@ -1,0 +1,105 @@
+// Experiment keys added with water vapour and the built-in solar spectrum.
+#include <algorithm>
+#include <catch2/catch.hpp>
+#include <string>
+
+#include "atmos/humidity.hpp"
+#include "experiment/experiment.hpp"
+#include "experiment/input_error.hpp"
+
+using namespace solstrata;
+
+namespace {
+
+/// 1-based line and column of the first occurrence of `needle`.
+std::pair<int, int> where(const std::string& text, const std::string& needle) {
+  const std::size_t at = text.find(needle);
+  REQUIRE(at != std::string::npos);
+  const int line = 1 + static_cast<int>(std::count(text.begin(), text.begin() + static_cast<long>(at), '\n'));
+  const std::size_t nl = text.rfind('\n', at == 0 ? 0 : at - 1);
+  const std::size_t col0 = (nl == std::string::npos || at == 0) ? at : at - nl - 1;
+  return {line, static_cast<int>(col0) + 1};
+}
+
+experiment::InputError error_of(const std::string& text) {
+  try {
+    (void)experiment::parse_experiment(text, "exp.yaml", ".");
+  } catch (const experiment::InputError& e) {
+    return e;
+  }
+  FAIL("expected an InputError");
+  throw;  // unreachable
+}
+
+std::string levels_with(const std::string& humidity_lines) {
+  return "atmosphere:\n"
+         "  levels:\n"
+         "    pressure_hpa: [100, 500, 1000]\n"
+         "    temperature_k: [220, 260, 290]\n"
+         "    altitude_km: [16, 5.5, 0]\n" +
+         humidity_lines + "sun:\n  solar_zenith_deg: 30\n";
+}
+
+}  // namespace
+
+TEST_CASE("profile levels accept specific or relative humidity, converted to ppmv", "[experiment][humidity]") {
+  const experiment::Experiment q =
+      experiment::parse_experiment(levels_with("    specific_humidity_kg_kg: [1e-5, 0.002, 0.01]\n"), "q.yaml", ".");
+  REQUIRE(q.profile.h2o_ppmv.size() == 3);
+  // Computed from x = q / (q + (1 - q) eps) (atmos/humidity.hpp).
+  CHECK(q.profile.h2o_ppmv[2] == Approx(15980.6).epsilon(1e-5));
+  CHECK(q.profile.h2o_ppmv[0] == Approx(atmos::ppmv_from_specific_humidity(1e-5)).epsilon(1e-14));
+
+  const experiment::Experiment rh =
+      experiment::parse_experiment(levels_with("    relative_humidity_percent: [10, 40, 70]\n"), "rh.yaml", ".");
+  REQUIRE(rh.profile.h2o_ppmv.size() == 3);
+  // 70 % at 290 K and 1000 hPa: x = 0.7 e_w(290 K) / p = 0.7 * 1920.09 Pa / 1e5 Pa = 13441 ppmv
+  // (computed from Murphy & Koop 2005, eq. 10, by hand).
+  CHECK(rh.profile.h2o_ppmv[2] == Approx(13440.6).epsilon(1e-5));
+  CHECK(rh.profile.h2o_ppmv[0] == Approx(atmos::ppmv_from_relative_humidity(10, 220, 100)).epsilon(1e-14));
+}
+
+TEST_CASE("two humidity keys in one levels mapping are an error at the second", "[experiment][humidity]") {
+  const std::string text = levels_with("    h2o_ppmv: [5, 100, 1000]\n    relative_humidity_percent: [1, 2, 3]\n");
+  const experiment::InputError e = error_of(text);
+  INFO(e.what());
+  CHECK(e.line() == where(text, "relative_humidity_percent").first);
+  CHECK(e.column() == where(text, "relative_humidity_percent").second);
+  CHECK_THAT(e.message(), Catch::Contains("give the water vapour once"));
+}
+
+TEST_CASE("an impossible relative humidity is an error at its element", "[experiment][humidity]") {
+  // 100 % at 390 K is a vapour pressure of ~1.8 bar (Murphy & Koop 2005 form), above 100 hPa.
+  const std::string text =
+      "atmosphere:\n  levels:\n    pressure_hpa: [100, 1000]\n    temperature_k: [330, 290]\n"
+      "    altitude_km: [16, 0]\n    relative_humidity_percent: [100, 50]\n"
+      "sun:\n  solar_zenith_deg: 30\n";
+  const experiment::InputError e = error_of(text);
+  INFO(e.what());
+  CHECK(e.line() == where(text, "[100, 50]").first);
+  CHECK(e.column() == where(text, "[100, 50]").second + 1);
+  CHECK(e.key_path() == "atmosphere.levels.relative_humidity_percent[0]");
+  CHECK_THAT(e.message(), Catch::Contains("not below the total pressure"));
+}
+
+TEST_CASE("precipitable_water_cm rescales the profile's water vapour exactly", "[experiment][humidity]") {
+  const experiment::Experiment e = experiment::parse_experiment(
+      "atmosphere:\n  precipitable_water_cm: 2.5\n  surface_pressure_hpa: 900\nsun:\n  solar_zenith_deg: 30\n",
+      "pwv.yaml", ".");
+  // The value asked for, after the pressure scaling (exact rescaling: layer columns are linear
+  // in the mixing ratios).
+  CHECK(atmos::total_h2o_cm(e.profile) == Approx(2.5).epsilon(1e-13));
+  // A profile without water vapour gets the default shape with that column.
+  const experiment::Experiment d = experiment::parse_experiment(
+      levels_with("") .insert(12, "  precipitable_water_cm: 0.7\n"), "dry.yaml", ".");
+  CHECK(atmos::total_h2o_cm(d.profile) == Approx(0.7).epsilon(1e-13));
+  CHECK(d.profile.h2o_ppmv.size() == 3);
+}
+
+TEST_CASE("precipitable_water_cm out of range is an error at its value", "[experiment][humidity]") {
+  const std::string text = "atmosphere:\n  precipitable_water_cm: 16\nsun:\n  solar_zenith_deg: 30\n";
+  const experiment::InputError e = error_of(text);
+  CHECK(e.line() == 2);
+  CHECK(e.column() == where(text, "16").second);
+  CHECK_THAT(e.message(), Catch::Contains("0 < precipitable_water_cm <= 15"));
+}
