@@ -275,8 +275,9 @@ def cross_section(grid, nu0, s, gamma_l, alpha_d, cutoff=DEFAULT_CUTOFF):
 def node_cross_section(lineset, nu_lo, nu_hi, p_hpa, t_k, self_vmr=0.0, cutoff=DEFAULT_CUTOFF,
                        step_fraction=DEFAULT_STEP_FRACTION, step=None):
     """Cross sections on the fine grid of bin [nu_lo, nu_hi] cm-1 at one node. The step (unless
-    given, cm-1) is step_fraction times the smallest Voigt HWHM of the lines in reach; since the
-    Voigt HWHM >= alpha_D it is <= step_fraction alpha_D. Returns (grid, sigma)."""
+    given, cm-1) is step_fraction times the smallest Voigt HWHM of the lines in reach (at low
+    pressure <= step_fraction alpha_D; at high pressure it follows the Lorentz width).
+    Returns (grid, sigma)."""
     nu0, s, gl, ad = lineset.parameters(p_hpa, t_k, self_vmr)
     near = (nu0 > nu_lo - cutoff) & (nu0 < nu_hi + cutoff)
     if step is None:

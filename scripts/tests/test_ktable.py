@@ -208,9 +208,10 @@ class TableVersusLineByLineTest(unittest.TestCase):
 
     def test_o2_b_band_and_1270(self):
         cols = kg.column_from_km_atm(PATHS)
-        for bin_nm in ((680.0, 690.0), (1250.0, 1300.0)):
-            lbl, tab = compare(self.o2, bin_nm, 300.0, 240.0, cols)
-            report(f"O2 {bin_nm} nm p=300 hPa T=240 K, u=1e-3..10 km-atm", lbl, tab)
+        for bin_nm, p in (((680.0, 690.0), 300.0), ((1250.0, 1300.0), 300.0),
+                          ((1250.0, 1300.0), 1.0)):
+            lbl, tab = compare(self.o2, bin_nm, p, 240.0, cols)
+            report(f"O2 {bin_nm} nm p={p} hPa T=240 K, u=1e-3..10 km-atm", lbl, tab)
             np.testing.assert_allclose(tab, lbl, atol=0.005, rtol=0)
 
     def test_h2o_subset(self):
