@@ -223,6 +223,43 @@ class TableVersusLineByLineTest(unittest.TestCase):
             np.testing.assert_allclose(tab, lbl, atol=0.01, rtol=0)
 
 
+@unittest.skipUnless(HAVE_DATA, "line data not available")
+class CommandLineTest(unittest.TestCase):
+    def test_h2o_table_with_self_broadening_axis(self):
+        # End to end through the command: an H2O table with an h2o_vmr axis, then the term at
+        # the x = 0.02 node against line-by-line with 2 % self broadening (Beer-Lambert-Bouguer
+        # reference as above), paths 1e-3..10 pr cm.
+        with tempfile.TemporaryDirectory() as d:
+            out = os.path.join(d, "h2o.ktab")
+            rc = kg.main(["table", "--gas", "H2O", "--lines", H2O_FILE, "--partition-dir", PART,
+                          "--min-strength", "1e-21", "--bins-nm", "2600:2700:100",
+                          "--n-pressures", "2", "--p-min", "100", "--p-max", "1000",
+                          "--t-min", "280", "--t-max", "280", "--h2o-vmr", "0,0.02",
+                          "--out", out])
+            self.assertEqual(rc, 0)
+            tab = kg.read_table(out)
+            with open(out) as f:
+                text = f.read()
+        self.assertIn("source line list H2O_2000-5000.par sha256 ", text)
+        self.assertIn("Rothman, L. S. et al. 2013", text)
+        self.assertEqual(tab["h2o_vmr"], [0.0, 0.02])
+        self.assertEqual([(lo, hi) for lo, hi, _, _ in tab["bins"]], [(2600.0, 2700.0)])
+        _, _, w, k = tab["bins"][0]
+        h2o = kg.read_hitran(H2O_FILE, 3600.0, 3900.0)
+        lineset = kg.LineSet(kg.subset(h2o, h2o["s296"] >= 1e-21), kg.PartitionSums(PART))
+        _, sigma = kg.node_cross_section(lineset, 1e7 / 2700, 1e7 / 2600, 1000.0, 280.0, 0.02)
+        cols = kg.column_from_precipitable_cm(PATHS)
+        lbl = kg.band_transmittance_lbl(sigma, cols)
+        t_k = kg.band_transmittance_k(k[:, 1, 1, 0], w, cols)
+        report("CLI H2O table x=0.02 p=1000 hPa T=280 K", lbl, t_k)
+        np.testing.assert_allclose(t_k, lbl, atol=0.01, rtol=0)
+        # Self broadening widens the lines: the x = 0.02 path absorbs more at u = 10 pr cm than
+        # the x = 0 one (gamma_self about 5x gamma_air for H2O lines, from memory; the test data
+        # have it line by line).
+        t0 = kg.band_transmittance_k(k[:, 0, 1, 0], w, cols)
+        self.assertLess(t_k[-3], t0[-3])
+
+
 @unittest.skipUnless(HAVE_DATA and os.path.exists(SHIPPED), "shipped table or line data missing")
 class ShippedTableTest(unittest.TestCase):
     def test_shipped_o2_table_against_lbl(self):
