@@ -69,6 +69,15 @@ void print_run_summary(std::ostream& os, const experiment::Experiment& e, const 
   }
   os << "planetary albedo " << fmt("%.4f", r.planetary_albedo) << ", absorbed: atmosphere "
      << fmt("%.1f", r.absorbed_atmosphere) << ", surface " << fmt("%.1f W m-2", r.absorbed_surface) << "\n";
+  if (!e.given_optics_mode) {
+    os << "gases: ";
+    for (std::size_t i = 0; i < r.gas_tables.size(); ++i) os << (i ? ", " : "") << r.gas_tables[i].substr(0, r.gas_tables[i].find(':'));
+    if (r.gas_tables.empty()) os << "none";
+    os << " (+ ozone); precipitable water " << fmt("%.3f", r.precipitable_water_cm) << " cm; " << r.n_points
+       << " spectral points\n";
+    for (const std::string& g : r.gases_not_modelled) os << "note: " << g << " absorption is not modelled (no table given)\n";
+    if (r.h2o_broadband) os << "note: " << experiment::kH2oBroadbandNote << "\n";
+  }
   if (r.solar_approximate) {
     os << "note: computed with the built-in approximate solar spectrum (Planck at 5772 K scaled to\n"
           "      1360.8 W m-2); band values are approximate and the UV index is indicative only.\n";

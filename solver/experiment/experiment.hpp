@@ -38,6 +38,16 @@ struct GivenOptics {
   std::vector<double> pressure_hpa;   ///< hPa: level pressures (optional: empty = no heating rate)
 };
 
+/// How one absorbing gas enters a run (atmosphere.absorbers).
+struct Absorber {
+  std::string gas;                ///< "H2O", "O2" or "CO2"
+  std::string mode;               ///< "builtin", "none" or "file"
+  std::filesystem::path file;     ///< the k-table file (mode "file", and the built-in O2 table)
+  /// the table, read once at load time (mode "file" and built-in O2); the built-in H2O table is
+  /// built for the run's grid (optics/h2o_lacis_hansen.hpp)
+  std::shared_ptr<const optics::KTable> table;
+};
+
 /// Output choices.
 struct OutputConfig {
   std::filesystem::path file;  ///< the HDF5 file to write
@@ -59,6 +69,7 @@ struct Experiment {
   optics::OpticsOptions optics;    ///< which components and how
   optics::AerosolSpec aerosol;     ///< the aerosol (tau_ref 0 when there is none)
   std::string aerosol_type;        ///< preset name used ("" when none)
+  std::vector<Absorber> absorbers; ///< H2O, O2, CO2 in this order (atmosphere mode only)
 
   double solar_zenith_deg = 0.0;   ///< degrees: solar zenith angle, [0, 90)
   sun::DistanceSpec distance;      ///< Earth-Sun distance factor (day of year or given)
@@ -105,6 +116,9 @@ class ProfileCache {
   struct Impl;
   std::unique_ptr<Impl> impl_;
 };
+
+/// The k-table at `path`, read once per process (thread-safe cache). Throws optics::KTableError.
+std::shared_ptr<const optics::KTable> cached_ktable(const std::filesystem::path& path);
 
 /// Reads and validates an experiment file. Relative paths inside it (profile, solar spectrum)
 /// are taken relative to the file's directory; the output path relative to the working

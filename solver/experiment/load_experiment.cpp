@@ -167,6 +167,8 @@ void read_atmosphere(Section& s, Experiment& e, const fs::path& base, ProfileCac
   e.optics.rayleigh = s.optional_bool("rayleigh", true).value;
   e.optics.ozone = s.optional_bool("ozone", true).value;
   e.optics.ozone_temperature_dependence = s.optional_bool("ozone_temperature_dependence", false).value;
+  e.absorbers.clear();
+  if (auto ab = s.optional_subsection("absorbers")) read_absorbers(*ab, e, base);
   s.check_no_unknown_keys();
   e.profile.co2_ppmv = co2.value;
   e.profile.latitude_deg = lat.value;
@@ -190,6 +192,51 @@ void read_atmosphere(Section& s, Experiment& e, const fs::path& base, ProfileCac
       e.profile_origin += "; water vapour: default shape (density scale height 2 km)";
     }
   }
+}
+
+/// File name of the shipped O2 table inside the data directory.
+constexpr const char* kBuiltinO2Table = "gases/o2_hitran2012.ktab";
+
+/// atmosphere.absorbers: per gas 'builtin', 'none' or a k-table file.
+void read_absorbers(Section& s, Experiment& e, const fs::path& base) {
+  const Document doc = s.document();
+  struct Gas {
+    const char* key;
+    const char* formula;
+    const char* fallback;  // default mode
+  };
+  for (const Gas g : {Gas{"h2o", "H2O", "builtin"}, Gas{"o2", "O2", "builtin"}, Gas{"co2", "CO2", "none"}}) {
+    const Located<std::string> v = s.optional_string(g.key, g.fallback);
+    Absorber a;
+    a.gas = g.formula;
+    if (v.value == "none") {
+      a.mode = "none";
+    } else if (v.value == "builtin") {
+      if (std::string(g.formula) == "CO2") {
+        throw doc.error(v, "there is no built-in CO2 table (no CO2 line data ship with solstrata): give a table "
+                           "built with scripts/ktable_gen.py from your own line file, or 'none'");
+      }
+      a.mode = "builtin";
+    } else {
+      a.mode = "file";
+      a.file = resolve(base, v.value);
+      std::error_code ec;
+      if (!fs::is_regular_file(a.file, ec)) {
+        throw doc.error(v, "gas table '" + a.file.string() + "' does not exist; give 'builtin', 'none' or the path of a "
+                           "k-table (docs/gas-tables.md) relative to the experiment file");
+      }
+      try {
+        a.table = cached_ktable(a.file);
+      } catch (const std::exception& ex) {
+        throw doc.error(v, std::string("cannot use this gas table: ") + ex.what());
+      }
+      if (a.table->gas != g.formula) {
+        throw doc.error(v, "the table '" + a.file.string() + "' is for " + a.table->gas + ", not " + g.formula);
+      }
+    }
+    e.absorbers.push_back(std::move(a));
+  }
+  s.check_no_unknown_keys();
 }
 
 void read_aerosol(Section& s, Experiment& e) {
@@ -408,6 +455,19 @@ const std::vector<std::pair<std::string, std::string>>& top_level_keys() {
   return keys;
 }
 
+std::shared_ptr<const optics::KTable> cached_ktable(const fs::path& path) {
+  static std::mutex mutex;
+  static std::map<std::string, std::shared_ptr<const optics::KTable>> tables;
+  const std::string key = fs::absolute(path).lexically_normal().string();
+  {
+    std::lock_guard<std::mutex> lock(mutex);
+    if (const auto it = tables.find(key); it != tables.end()) return it->second;
+  }
+  auto t = std::make_shared<const optics::KTable>(optics::read_ktable(path));
+  std::lock_guard<std::mutex> lock(mutex);
+  return tables.try_emplace(key, std::move(t)).first->second;
+}
+
 struct ProfileCache::Impl {
   mutable std::mutex mutex;
   std::map<std::string, std::unique_ptr<atmos::Profile>> profiles;
@@ -457,6 +517,9 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
     } else {
       e.profile = atmos::make_us_standard_1976();
       e.profile_origin = "built-in U.S. Standard Atmosphere 1976 (generated)";
+    }
+    if (e.absorbers.empty()) {
+      e.absorbers = {{"H2O", "builtin", {}, nullptr}, {"O2", "builtin", {}, nullptr}, {"CO2", "none", {}, nullptr}};
     }
     if (auto a = root.optional_subsection("aerosol")) read_aerosol(*a, e);
     else e.aerosol.tau_ref = 0.0;

@@ -6,6 +6,7 @@
 #include <stdexcept>
 
 #include "optics/column_optics.hpp"
+#include "optics/h2o_lacis_hansen.hpp"
 #include "products/surface_products.hpp"
 #include "rt/discrete_ordinates.hpp"
 #include "rt/two_stream.hpp"
@@ -174,7 +175,35 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
   const spectrum::SolarSource solar =
       e.solar_file.empty() ? spectrum::builtin_solar(grid)
                            : spectrum::tabulated_solar(spectrum::read_spectrum_csv(e.solar_file.string(), e.solar_column), grid);
-  const optics::ColumnOptics co = optics::build_column_optics(e.profile, grid, e.aerosol, e.optics);
+  // Absorbing gases: the built-in H2O table is made for this grid (weighted by ASTM E490), the
+  // built-in O2 table and users' tables were read at load time or come from the data directory.
+  optics::OpticsOptions oo = e.optics;
+  std::vector<std::string> gas_lines, not_modelled;
+  bool h2o_broadband = false;
+  for (const Absorber& a : e.absorbers) {
+    if (a.mode == "none") {
+      not_modelled.push_back(a.gas);
+      continue;
+    }
+    std::shared_ptr<const optics::KTable> t = a.table;
+    if (a.mode == "builtin" && a.gas == "H2O" && grid.upper_nm() <= 700.0) {
+      continue;  // the built-in representation puts all water-vapour absorption above 700 nm
+    }
+    if (a.mode == "builtin" && a.gas == "H2O") {
+      const std::vector<double> e490 = e.solar == SolarChoice::e490
+                                           ? solar.bin_irradiance
+                                           : spectrum::builtin_e490_solar(grid, e.data_dir.string()).bin_irradiance;
+      t = std::make_shared<const optics::KTable>(optics::h2o_lacis_hansen(grid, e490));
+      h2o_broadband = true;
+    } else if (a.mode == "builtin" && a.gas == "O2") {
+      t = cached_ktable(e.data_dir / "gases" / "o2_hitran2012.ktab");
+    }
+    std::string line = a.gas + ": " + t->title + " (" + t->origin + ")";
+    for (const std::string& src : t->source) line += "; " + src;
+    gas_lines.push_back(std::move(line));
+    oo.gas_tables.push_back(std::move(t));
+  }
+  const optics::ColumnOptics co = optics::build_column_optics(e.profile, grid, e.aerosol, oo);
 
   Problems p;
   p.n = co.n_points;
@@ -208,6 +237,12 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
   r.level_altitude_km = e.profile.altitude_km;
   r.solar_approximate = solar.approximate;
   r.solar_description = solar.description;
+  r.n_points = p.n;
+  r.layer_h2o_cm = atmos::layer_columns(e.profile).h2o_cm;
+  for (double v : r.layer_h2o_cm) r.precipitable_water_cm += v;
+  r.gas_tables = std::move(gas_lines);
+  r.gases_not_modelled = std::move(not_modelled);
+  r.h2o_broadband = h2o_broadband;
   for (const spectrum::Bin& b : grid.bins()) {
     r.bin_lower_nm.push_back(b.lower_nm);
     r.bin_upper_nm.push_back(b.upper_nm);

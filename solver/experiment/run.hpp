@@ -30,6 +30,18 @@ struct RunResult {
   bool solar_approximate = false;    ///< the built-in approximate solar spectrum was used
   std::string solar_description;     ///< provenance of the solar spectrum
   std::string closure;               ///< two-stream closure name
+  std::size_t n_points = 0;          ///< spectral points solved (bins, or bins x k-terms)
+
+  // Gases.
+  std::vector<double> layer_h2o_cm;  ///< cm: precipitable water in each layer [layer] (empty in given-optics mode)
+  double precipitable_water_cm = 0;  ///< cm: total precipitable water of the column
+  /// one line per absorbing gas: "<gas>: <table title> (<origin>)"; the table's provenance follows
+  std::vector<std::string> gas_tables;
+  /// gases the run does not model ("CO2"), for notes in outputs and on the terminal
+  std::vector<std::string> gases_not_modelled;
+  /// the built-in H2O table (Lacis & Hansen 1974 spread over the grid) was used: a broadband
+  /// representation whose spectral detail in the near infrared is approximate
+  bool h2o_broadband = false;
 
   // Level fluxes, W m-2.
   std::vector<double> direct_down, diffuse_down, diffuse_up, net_down;  ///< broadband [level]
@@ -88,6 +100,11 @@ RunResult run_experiment(const Experiment& e);
 inline constexpr const char* kUvCaution =
     "UV index values are model estimates for clear skies, not medical advice; follow your local "
     "health authority's sun-protection guidance.";
+/// The note stored and printed when the built-in water-vapour table is used.
+inline constexpr const char* kH2oBroadbandNote =
+    "water vapour from the built-in Lacis & Hansen (1974) exponential sum spread over the near-infrared "
+    "bins: broadband absorption is represented, spectral detail in the near infrared is approximate";
+
 /// The caution stored with irradiance output for solar-energy use.
 inline constexpr const char* kSolarCaution =
     "Clear-sky model irradiance; not a substitute for measured resource data when sizing or "

@@ -97,6 +97,11 @@ std::vector<Field> result_fields(const experiment::RunResult& r) {
                 {"caution", kUvCaution}};
     if (r.solar_approximate) uv.notes.emplace_back("quality", "indicative: computed with the built-in approximate solar spectrum");
   }
+  if (!r.layer_h2o_cm.empty()) {
+    add("layer_precipitable_water", {"layer"}, r.layer_h2o_cm, "cm", "water vapour in the layer as precipitable water (liquid-equivalent depth)");
+    Field& pw = scalar("precipitable_water", r.precipitable_water_cm, "cm", "total precipitable water of the column (liquid-equivalent depth)");
+    if (r.h2o_broadband) pw.notes = {{"quality", experiment::kH2oBroadbandNote}};
+  }
   scalar("solar_zenith_angle", r.solar_zenith_deg, "degree", "solar zenith angle", "solar_zenith_angle");
   scalar("cos_solar_zenith", r.mu0, "1", "cosine of the solar zenith angle");
   scalar("earth_sun_factor", r.earth_sun_factor, "1", "(mean Earth-Sun distance / distance)^2 applied to the TOA irradiance");

@@ -39,6 +39,16 @@ void write_global_attributes(Hdf5Writer& w, const experiment::Experiment& e, con
   w.set_attribute("", "atmosphere_profile", e.given_optics_mode ? std::string("given_optics") : e.profile_origin);
   w.set_attribute("", "solar_spectrum", r.solar_description);
   w.set_attribute("", "solar_spectrum_approximate", r.solar_approximate ? 1 : 0);
+  if (!e.given_optics_mode) {
+    std::string gases;
+    for (const std::string& g : r.gas_tables) gases += (gases.empty() ? "" : "\n") + g;
+    w.set_attribute("", "gas_tables", gases.empty() ? std::string("none (no gas absorption but ozone)") : gases);
+    std::string missing;
+    for (const std::string& g : r.gases_not_modelled) missing += (missing.empty() ? "" : ", ") + g;
+    if (!missing.empty()) w.set_attribute("", "gases_not_modelled", missing + ": absorption by these gases is not modelled");
+    if (r.h2o_broadband) w.set_attribute("", "water_vapour_note", experiment::kH2oBroadbandNote);
+    w.set_attribute("", "spectral_points", static_cast<int>(r.n_points));
+  }
   w.set_attribute("", "direct_beam_convention",
                   "direct = unscattered beam exp(-tau/mu0) of the unscaled optical depth; diffuse down = total down - direct "
                   "(forward scattering folded into the beam by delta scaling counts as diffuse)");
