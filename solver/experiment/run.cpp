@@ -172,8 +172,10 @@ RunResult run_given(const Experiment& e, double mu0, double factor) {
 RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
   const spectrum::Grid grid = spectrum::make_grid(e.segments, e.bands);
   const spectrum::SolarSource solar =
-      e.solar_file.empty() ? spectrum::builtin_solar(grid)
-                           : spectrum::tabulated_solar(spectrum::read_spectrum_csv(e.solar_file.string(), e.solar_column), grid);
+      e.solar == experiment::SolarChoice::planck ? spectrum::builtin_solar(grid)
+      : e.solar == experiment::SolarChoice::e490
+          ? spectrum::builtin_e490_solar(grid, e.data_dir.string())
+          : spectrum::tabulated_solar(spectrum::read_spectrum_csv(e.solar_file.string(), e.solar_column), grid);
   const optics::ColumnOptics co = optics::build_column_optics(e.profile, grid, e.aerosol, e.optics);
 
   Problems p;
