@@ -32,7 +32,9 @@ void print_check_summary(std::ostream& os, const experiment::Experiment& e) {
                                  : std::string("none"))
        << "\n";
     os << "  spectrum:    " << g.size() << fmt(" bins, %g", g.lower_nm()) << fmt("-%g nm, ", g.upper_nm())
-       << (e.solar_file.empty() ? "built-in approximate solar spectrum" : "solar spectrum " + e.solar_file.string()) << "\n";
+       << (e.solar == experiment::SolarChoice::planck ? std::string("built-in approximate solar spectrum (Planck)")
+           : e.solar == experiment::SolarChoice::e490 ? std::string("built-in solar spectrum ASTM E490-00a scaled to 1361 W m-2")
+                                                      : "solar spectrum " + e.solar_file.string()) << "\n";
     os << "  bands:      ";
     for (const auto& b : g.bands()) os << " " << b.name << fmt(" (%g", b.lower_nm) << fmt("-%g)", b.upper_nm);
     os << "\n";

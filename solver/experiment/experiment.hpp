@@ -55,6 +55,13 @@ struct OutputConfig {
   std::filesystem::path csv;   ///< optional flat CSV summary (empty = none)
 };
 
+/// Which top-of-atmosphere solar spectrum a run uses.
+enum class SolarChoice {
+  e490,    ///< built-in ASTM E490-00a rescaled to 1361 W m-2 (the default)
+  planck,  ///< built-in Planck approximation (flagged approximate)
+  file,    ///< the user's CSV (solar_file, solar_column)
+};
+
 /// A fully resolved experiment.
 struct Experiment {
   std::string title;               ///< the user's title ("" when not given)
@@ -83,8 +90,14 @@ struct Experiment {
 
   std::vector<spectrum::GridSegment> segments;  ///< spectral bins
   std::vector<spectrum::Band> bands;            ///< reporting bands
-  std::filesystem::path solar_file;             ///< user's solar spectrum CSV ("" = built-in)
+  SolarChoice solar = SolarChoice::e490;        ///< which solar spectrum
+  std::filesystem::path solar_file;             ///< user's solar spectrum CSV (SolarChoice::file)
   std::string solar_column;                     ///< its column ("" = the only one)
+  /// true: bins of the grid outside the user's table get zero irradiance (the table's partial
+  /// coverage is reported); false: a table that does not cover the grid is an input error
+  bool solar_fill_zero = false;
+  /// built-in data (solar/astm_e490_00a.csv, ...): default_data_dir() when loaded
+  std::filesystem::path data_dir;
 
   rt::Closure closure = rt::Closure::delta_eddington;  ///< two-stream closure
   /// true: solve with the exact multi-stream reference (discrete ordinates) instead of two-stream
@@ -119,6 +132,11 @@ class ProfileCache {
 
 /// The k-table at `path`, read once per process (thread-safe cache). Throws optics::KTableError.
 std::shared_ptr<const optics::KTable> cached_ktable(const std::filesystem::path& path);
+
+/// The directory of built-in data: the environment variable SOLSTRATA_DATA_DIR when set and not
+/// empty, else the source tree's solver/data (compile definition SOLSTRATA_SOURCE_DATA_DIR),
+/// else "data" (relative to the working directory).
+std::filesystem::path default_data_dir();
 
 /// Reads and validates an experiment file. Relative paths inside it (profile, solar spectrum)
 /// are taken relative to the file's directory; the output path relative to the working

@@ -2,6 +2,7 @@
 // documented in docs/experiment-keys.md; keep the two in step.
 #include <algorithm>
 #include <cmath>
+#include <cstdlib>
 #include <fstream>
 #include <map>
 #include <memory>
@@ -13,6 +14,7 @@
 #include "atmos/standard_atmosphere.hpp"
 #include "experiment/experiment.hpp"
 #include "experiment/yaml_reader.hpp"
+#include "spectrum/solar.hpp"
 
 namespace solstrata::experiment {
 namespace {
@@ -50,6 +52,28 @@ void require_monotonic(const Document& doc, const LocatedNumbers& v, bool up, co
       throw doc.error(v.at(i), m.str());
     }
   }
+}
+
+using spectrum_range = std::pair<double, double>;
+
+/// nm: first and last wavelength of a solar spectrum file's column, cached by path, column and
+/// modification time (a sweep checks the same file once per scenario).
+spectrum_range table_range(const fs::path& path, const std::string& column) {
+  static std::mutex mutex;
+  static std::map<std::string, std::pair<fs::file_time_type, spectrum_range>> cache;
+  std::error_code ec;
+  const fs::file_time_type mtime = fs::last_write_time(path, ec);
+  const std::string key = path.string() + '\n' + column;
+  {
+    std::lock_guard<std::mutex> lock(mutex);
+    const auto it = cache.find(key);
+    if (!ec && it != cache.end() && it->second.first == mtime) return it->second.second;
+  }
+  const spectrum::TabulatedSpectrum t = spectrum::read_spectrum_csv(path.string(), column);
+  const spectrum_range r{t.wavelength_nm.front(), t.wavelength_nm.back()};
+  std::lock_guard<std::mutex> lock(mutex);
+  if (!ec) cache[key] = {mtime, r};
+  return r;
 }
 
 /// Reads a `levels` mapping (experiment inline levels or a profile file's levels).
@@ -128,6 +152,8 @@ atmos::Profile read_profile_file(const fs::path& path) {
   if (const std::string m = p.validate(); !m.empty()) throw doc.error(lv.mark(), "levels", m);
   return p;
 }
+
+void read_absorbers(Section& s, Experiment& e, const fs::path& base);
 
 void read_atmosphere(Section& s, Experiment& e, const fs::path& base, ProfileCache* cache) {
   const Document doc = s.document();
@@ -367,14 +393,33 @@ void read_spectrum(Section& s, Experiment& e, const fs::path& base) {
       e.bands.push_back(band);
     }
   }
-  if (auto sol = s.optional_subsection("solar_spectrum")) {
+  if (s.has("solar_spectrum") && !s.is_mapping("solar_spectrum")) {
+    const auto which = s.choice("solar_spectrum", {"builtin", "planck"});
+    e.solar = which.value == "planck" ? SolarChoice::planck : SolarChoice::e490;
+  } else if (auto sol = s.optional_subsection("solar_spectrum")) {
     const auto file = sol->required_string("file");
     e.solar_column = sol->optional_string("column", "").value;
+    e.solar_fill_zero = sol->optional_choice("fill", "none", {"none", "zero"}).value == "zero";
     sol->check_no_unknown_keys();
+    e.solar = SolarChoice::file;
     e.solar_file = resolve(base, file.value);
     std::error_code ec;
     if (!fs::is_regular_file(e.solar_file, ec)) {
       throw doc.error(file, "solar spectrum file '" + e.solar_file.string() + "' does not exist");
+    }
+    // Coverage of the grid, checked here so that a run never starts on a short table.
+    spectrum_range range;
+    try {
+      range = table_range(e.solar_file, e.solar_column);
+    } catch (const std::exception& ex) {
+      throw doc.error(file, ex.what());
+    }
+    const double lo = e.segments.front().from_nm, hi = e.segments.back().to_nm;
+    if (!e.solar_fill_zero && (range.first > lo || range.second < hi)) {
+      throw doc.error(file, "solar spectrum file '" + e.solar_file.string() + "' covers " + format_number(range.first) + ".." +
+                                format_number(range.second) + " nm but the spectral grid spans " + format_number(lo) + ".." +
+                                format_number(hi) + " nm; extend the table, narrow spectrum.bins, or add 'fill: zero' "
+                                "to give the uncovered part zero irradiance");
     }
   }
   s.check_no_unknown_keys();
@@ -489,6 +534,7 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
   const Document doc = Document::parse(std::move(text), name);
   Section root = doc.root();
   Experiment e;
+  e.data_dir = default_data_dir();
   e.source = name;
   e.text = doc.text();
   e.title = root.optional_string("title", "").value;
@@ -554,6 +600,15 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
   (void)root.has("sweep");  // read by Study (experiment/sweep.hpp)
   root.check_no_unknown_keys();
   return e;
+}
+
+fs::path default_data_dir() {
+  if (const char* env = std::getenv("SOLSTRATA_DATA_DIR"); env && *env) return fs::path(env);
+#ifdef SOLSTRATA_SOURCE_DATA_DIR
+  return fs::path(SOLSTRATA_SOURCE_DATA_DIR);
+#else
+  return fs::path("data");
+#endif
 }
 
 std::string read_experiment_text(const fs::path& path) {

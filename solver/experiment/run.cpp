@@ -2,6 +2,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <map>
+#include <mutex>
 #include <numbers>
 #include <stdexcept>
 
@@ -170,11 +172,30 @@ RunResult run_given(const Experiment& e, double mu0, double factor) {
   return r;
 }
 
+/// The built-in H2O table (Lacis & Hansen 1974 spread over the bins by optics::h2o_lacis_hansen),
+/// made once per process on the default grid with the ASTM E490 spectrum as the weighting. Its
+/// weights are fractions of the whole solar spectrum, so it is always made on the full default
+/// grid; a run on another grid takes it through the table-to-grid mapping of optics::gas_points.
+std::shared_ptr<const optics::KTable> builtin_h2o_table(const std::filesystem::path& data_dir) {
+  static std::mutex mutex;
+  static std::map<std::string, std::shared_ptr<const optics::KTable>> made;
+  std::lock_guard<std::mutex> lock(mutex);
+  auto& t = made[data_dir.string()];
+  if (!t) {
+    const spectrum::Grid grid = spectrum::make_grid(spectrum::default_segments(), spectrum::default_bands());
+    t = std::make_shared<const optics::KTable>(
+        optics::h2o_lacis_hansen(grid, spectrum::builtin_e490_solar(grid, data_dir.string()).bin_irradiance));
+  }
+  return t;
+}
+
 RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
   const spectrum::Grid grid = spectrum::make_grid(e.segments, e.bands);
   const spectrum::SolarSource solar =
-      e.solar_file.empty() ? spectrum::builtin_solar(grid)
-                           : spectrum::tabulated_solar(spectrum::read_spectrum_csv(e.solar_file.string(), e.solar_column), grid);
+      e.solar == experiment::SolarChoice::planck ? spectrum::builtin_solar(grid)
+      : e.solar == experiment::SolarChoice::e490
+          ? spectrum::builtin_e490_solar(grid, e.data_dir.string())
+          : spectrum::tabulated_solar(spectrum::read_spectrum_csv(e.solar_file.string(), e.solar_column), grid);
   // Absorbing gases: the built-in H2O table is made for this grid (weighted by ASTM E490), the
   // built-in O2 table and users' tables were read at load time or come from the data directory.
   optics::OpticsOptions oo = e.optics;
@@ -186,14 +207,8 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
       continue;
     }
     std::shared_ptr<const optics::KTable> t = a.table;
-    if (a.mode == "builtin" && a.gas == "H2O" && grid.upper_nm() <= 700.0) {
-      continue;  // the built-in representation puts all water-vapour absorption above 700 nm
-    }
     if (a.mode == "builtin" && a.gas == "H2O") {
-      const std::vector<double> e490 = e.solar == SolarChoice::e490
-                                           ? solar.bin_irradiance
-                                           : spectrum::builtin_e490_solar(grid, e.data_dir.string()).bin_irradiance;
-      t = std::make_shared<const optics::KTable>(optics::h2o_lacis_hansen(grid, e490));
+      t = builtin_h2o_table(e.data_dir);
       h2o_broadband = true;
     } else if (a.mode == "builtin" && a.gas == "O2") {
       t = cached_ktable(e.data_dir / "gases" / "o2_hitran2012.ktab");

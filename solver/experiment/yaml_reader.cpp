@@ -297,6 +297,11 @@ std::vector<std::string> Section::keys() const {
 
 bool Section::has(std::string_view key) { return find(key) != nullptr; }
 
+bool Section::is_mapping(std::string_view key) {
+  const Entry* e = find(key);
+  return e != nullptr && e->value.IsMap();
+}
+
 SourceMark Section::mark_of(std::string_view key) const {
   for (const Entry& e : entries_) {
     if (e.key == key) return value_mark(e);

@@ -146,6 +146,9 @@ class Section {
   /// Whether `key` is written (an empty value counts: reading it then fails). Records the key as
   /// known.
   [[nodiscard]] bool has(std::string_view key);
+  /// Whether `key` is written and its value is a mapping (then read it with subsection). Records
+  /// the key as known.
+  [[nodiscard]] bool is_mapping(std::string_view key);
 
   /// A finite number within `range`. `unit` (e.g. "hPa") is only used in messages.
   Located<double> required_number(std::string_view key, Range range = {},

@@ -153,11 +153,11 @@ KTable read_ktable(const std::filesystem::path& path) {
   {
     const Line& m = r.expect("solstrata_ktable");
     if (m.rest != "1") {
-      r.fail("unsupported table format version '" + m.rest + "' (this program reads version 1)");
+      throw KTableError(path.string(), m.number, "unsupported table format version '" + m.rest + "' (this program reads version 1)");
     }
   }
   t.gas = r.expect("gas").rest;
-  if (t.gas.empty() || t.gas.find(' ') != std::string::npos) r.fail("'gas' needs one molecule formula, e.g. O2");
+  if (t.gas.empty() || t.gas.find(' ') != std::string::npos) throw KTableError(path.string(), 0, "'gas' needs one molecule formula, e.g. O2");
   if (r.at("title")) t.title = r.expect("title").rest;
   while (r.at("source")) t.source.push_back(r.expect("source").rest);
   while (r.at("generator")) t.generator.push_back(r.expect("generator").rest);

@@ -204,12 +204,13 @@ std::string_view to_string(SolarSourceKind k) {
   switch (k) {
     case SolarSourceKind::builtin_planck: return "builtin_planck";
     case SolarSourceKind::user_table: return "user_table";
+    case SolarSourceKind::builtin_e490: return "builtin_e490";
   }
   return "unknown";
 }
 
 std::optional<SolarSourceKind> parse_solar_source_kind(std::string_view name) {
-  for (SolarSourceKind k : {SolarSourceKind::builtin_planck, SolarSourceKind::user_table}) {
+  for (SolarSourceKind k : {SolarSourceKind::builtin_planck, SolarSourceKind::user_table, SolarSourceKind::builtin_e490}) {
     if (to_string(k) == name) return k;
   }
   return std::nullopt;
@@ -267,6 +268,30 @@ SolarSource tabulated_solar(const TabulatedSpectrum& t, const Grid& grid) {
     const double hi = std::min(b.upper_nm, t.wavelength_nm.back());
     s.bin_coverage.push_back(hi > lo ? (hi - lo) / b.width_nm() : 0.0);
   }
+  return s;
+}
+
+double e490_scale_factor(const TabulatedSpectrum& e490) {
+  const double total = integrate(e490, e490.wavelength_nm.front(), e490.wavelength_nm.back());
+  if (!(total > 0.0)) throw std::invalid_argument("spectrum '" + e490.label + "' integrates to " + num(total) + " W m-2");
+  return kNominalTotalSolarIrradiance / total;
+}
+
+SolarSource builtin_e490_solar(const Grid& grid, const std::string& data_dir) {
+  const std::string path = data_dir + "/" + kE490RelativePath;
+  const TabulatedSpectrum e490 = read_spectrum_csv(path);
+  const double f = e490_scale_factor(e490);
+  SolarSource s = tabulated_solar(e490, grid);
+  for (double& v : s.bin_irradiance) v *= f;
+  s.kind = SolarSourceKind::builtin_e490;
+  s.approximate = false;
+  std::ostringstream d;
+  d.precision(6);
+  d << "built-in ASTM E490-00a air-mass-zero spectrum at its native resolution, integrated onto the bins and "
+       "rescaled by "
+    << f << " from its own total of " << kNominalTotalSolarIrradiance / f
+    << " W m-2 to a total solar irradiance of 1361 W m-2 (IAU 2015 Resolution B3; Kopp & Lean 2011)";
+  s.description = d.str();
   return s;
 }
 

@@ -41,12 +41,21 @@ TabulatedSpectrum read_spectrum_csv(const std::string& path, std::string_view co
 /// tabulated range the spectrum counts as zero.
 double integrate(const TabulatedSpectrum& s, double lower_nm, double upper_nm);
 
+/// W m-2: nominal total solar irradiance to which the built-in ASTM E490 spectrum is rescaled
+/// (IAU 2015 Resolution B3, nominal solar constant 1361 W m-2; Kopp & Lean 2011 measured
+/// 1360.8 +- 0.5 W m-2).
+inline constexpr double kNominalTotalSolarIrradiance = 1361.0;
+/// File of the built-in spectrum, relative to the data directory (solver/data/solar/README.md).
+inline constexpr const char* kE490RelativePath = "solar/astm_e490_00a.csv";
+
 /// Where a solar source came from; the output code reports it.
 enum class SolarSourceKind {
   builtin_planck,  ///< the built-in approximation (Planck at 5772 K scaled to 1360.8 W m-2)
   user_table,      ///< a user-supplied tabulated spectrum
+  builtin_e490,    ///< the built-in ASTM E490-00a spectrum rescaled to 1361 W m-2
 };
-/// Stable lower-case name for files and attributes ("builtin_planck", "user_table").
+/// Stable lower-case name for files and attributes ("builtin_planck", "user_table",
+/// "builtin_e490").
 std::string_view to_string(SolarSourceKind k);
 /// Inverse of to_string; std::nullopt for an unknown name.
 std::optional<SolarSourceKind> parse_solar_source_kind(std::string_view name);
@@ -81,5 +90,16 @@ SolarSource builtin_solar(const Grid& grid);
 /// piecewise-linear table over each bin). Flagged not approximate. Throws std::invalid_argument
 /// if the table is invalid or does not overlap the grid at all.
 SolarSource tabulated_solar(const TabulatedSpectrum& s, const Grid& grid);
+
+/// The built-in spectrum on `grid`: ASTM E490-00a read from `data_dir` / kE490RelativePath at
+/// its native resolution, integrated exactly onto the bins (as tabulated_solar) and scaled by
+/// kNominalTotalSolarIrradiance / (its integral over the whole file, 1366.09 W m-2), so that the
+/// whole spectrum holds 1361 W m-2. Flagged not approximate; the description states the source
+/// and the rescaling. Throws std::runtime_error naming the file when it cannot be read (e.g. a
+/// wrong data directory), std::invalid_argument if it does not overlap the grid.
+SolarSource builtin_e490_solar(const Grid& grid, const std::string& data_dir);
+
+/// dimensionless: the factor builtin_e490_solar applies, 1361 / integral of the file (W m-2).
+double e490_scale_factor(const TabulatedSpectrum& e490);
 
 }  // namespace solstrata::spectrum

@@ -81,6 +81,15 @@ TEST_CASE("every command has --help and the tool has --version", "[app]") {
   CHECK(run("run a.yaml --bogus").code == 2);
 }
 
+TEST_CASE("the Planck approximation, asked for, is flagged in the summary", "[app]") {
+  std::ofstream(workdir() / "planck.yaml") << kGood << "spectrum:\n  solar_spectrum: planck\n";
+  const Outcome o = run("run planck.yaml -o planck.h5");
+  INFO(o.err);
+  REQUIRE(o.code == 0);
+  CHECK(o.out.find("approximate solar spectrum") != std::string::npos);
+  fs::remove(workdir() / "planck.h5");
+}
+
 TEST_CASE("a good experiment runs, prints the table and writes its files", "[app]") {
   std::ofstream(workdir() / "good.yaml") << kGood;
   const Outcome chk = run("check good.yaml");
@@ -92,7 +101,8 @@ TEST_CASE("a good experiment runs, prints the table and writes its files", "[app
   CHECK(o.out.find("broadband") != std::string::npos);
   CHECK(o.out.find("UV index") != std::string::npos);
   CHECK(o.out.find("not medical advice") != std::string::npos);
-  CHECK(o.out.find("approximate solar spectrum") != std::string::npos);
+  // The default solar spectrum is the built-in ASTM E490 table: no approximation note.
+  CHECK(o.out.find("approximate solar spectrum") == std::string::npos);
   CHECK(fs::exists(workdir() / "good.h5"));
   const std::string csv = slurp(workdir() / "good.csv");
   CHECK(csv.find("broadband") != std::string::npos);

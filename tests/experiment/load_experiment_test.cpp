@@ -1,5 +1,8 @@
 // Experiment keys added with water vapour and the built-in solar spectrum.
 #include <algorithm>
+#include <filesystem>
+#include <fstream>
+#include <unistd.h>
 #include <catch2/catch.hpp>
 #include <string>
 
@@ -102,4 +105,47 @@ TEST_CASE("precipitable_water_cm out of range is an error at its value", "[exper
   CHECK(e.line() == 2);
   CHECK(e.column() == where(text, "16").second);
   CHECK_THAT(e.message(), Catch::Contains("0 < precipitable_water_cm <= 15"));
+}
+
+TEST_CASE("the solar spectrum is the built-in E490 table unless another is asked for", "[experiment][solar]") {
+  const std::string sun = "sun:\n  solar_zenith_deg: 30\n";
+  CHECK(experiment::parse_experiment(sun, "a.yaml", ".").solar == experiment::SolarChoice::e490);
+  CHECK(experiment::parse_experiment(sun + "spectrum:\n  solar_spectrum: builtin\n", "b.yaml", ".").solar ==
+        experiment::SolarChoice::e490);
+  CHECK(experiment::parse_experiment(sun + "spectrum:\n  solar_spectrum: planck\n", "c.yaml", ".").solar ==
+        experiment::SolarChoice::planck);
+  const std::string bad = sun + "spectrum:\n  solar_spectrum: plank\n";
+  const experiment::InputError e = error_of(bad);
+  CHECK(e.line() == 4);
+  CHECK(e.column() == where(bad, "plank").second);
+  CHECK_THAT(e.message(), Catch::Contains("did you mean 'planck'"));
+  // The data directory comes from default_data_dir(); the built-in file is there.
+  CHECK(std::filesystem::is_regular_file(experiment::parse_experiment(sun, "d.yaml", ".").data_dir /
+                                         "solar/astm_e490_00a.csv"));
+}
+
+TEST_CASE("a user solar table that does not cover the grid is an input error unless fill: zero",
+          "[experiment][solar]") {
+  const std::filesystem::path dir = std::filesystem::temp_directory_path() / ("solstrata_load_" + std::to_string(::getpid()));
+  std::filesystem::create_directories(dir);
+  std::ofstream(dir / "short.csv") << "wavelength_nm,irradiance\n300,1.0\n3000,0.1\n";
+  const std::string text = "sun:\n  solar_zenith_deg: 30\nspectrum:\n  solar_spectrum:\n    file: short.csv\n";
+  try {
+    (void)experiment::parse_experiment(text, "exp.yaml", dir);
+    FAIL("expected an InputError");
+  } catch (const experiment::InputError& e) {
+    INFO(e.what());
+    CHECK(e.line() == 5);
+    CHECK(e.column() == where(text, "short.csv").second);
+    CHECK_THAT(e.message(), Catch::Contains((dir / "short.csv").string()) && Catch::Contains("covers 300..3000 nm") &&
+                                Catch::Contains("spans 250..4000 nm") && Catch::Contains("fill: zero"));
+  }
+  const experiment::Experiment ok = experiment::parse_experiment(text + "    fill: zero\n", "exp.yaml", dir);
+  CHECK(ok.solar == experiment::SolarChoice::file);
+  CHECK(ok.solar_fill_zero);
+  // A table covering the grid needs no fill.
+  std::ofstream(dir / "wide.csv") << "wavelength_nm,irradiance\n200,1.0\n5000,0.1\n";
+  CHECK(experiment::parse_experiment("sun:\n  solar_zenith_deg: 30\nspectrum:\n  solar_spectrum:\n    file: wide.csv\n",
+                                     "exp.yaml", dir).solar == experiment::SolarChoice::file);
+  std::filesystem::remove_all(dir);
 }

@@ -56,11 +56,11 @@ TEST_CASE("the demo experiment runs and its budget closes", "[experiment]") {
   CHECK(r.global_horizontal == Approx(r.direct_down.back() + r.diffuse_down.back()).epsilon(1e-14));
   CHECK(r.global_horizontal == Approx(r.direct_normal * r.mu0 + r.diffuse_horizontal).epsilon(1e-12));
   // TOA downward flux = mu0 x (distance factor x solar constant over the grid): the built-in
-  // spectrum integrates to 1360.8 W m-2 over all wavelengths (Kopp & Lean 2011); 250-4000 nm
-  // holds about 98-99 % of it (common practice).
+  // ASTM E490-00a spectrum is scaled to 1361 W m-2 over all wavelengths (IAU 2015 B3); 250-4000 nm
+  // holds 1352.26 / 1366.09 = 99.0 % of it (computed from the file).
   CHECK(r.toa_down == Approx(r.mu0 * r.toa_normal_w_m2).epsilon(1e-12));
-  CHECK(r.toa_normal_w_m2 / r.earth_sun_factor > 0.97 * 1360.8);
-  CHECK(r.toa_normal_w_m2 / r.earth_sun_factor < 1360.8);
+  CHECK(r.toa_normal_w_m2 / r.earth_sun_factor > 0.97 * 1361.0);
+  CHECK(r.toa_normal_w_m2 / r.earth_sun_factor < 1361.0);
   // Physically expected ranges for a clear, lightly hazy sky at 32.5 degrees (common practice:
   // clear-sky global horizontal irradiance near 850-950 W m-2 at this sun height; PAR photon flux
   // about 1600-2000 umol m-2 s-1; summer mid-latitude UV index 6-9). Water vapour is not in the
@@ -100,7 +100,17 @@ TEST_CASE("the result file is a self-describing netCDF-4 dataset", "[experiment]
   CHECK(io::text_attribute(hr.attributes, "units") == "K day-1");
   const io::StoredVariable uv = io::read_variable(out, "uv_index");
   CHECK(io::text_attribute(uv.attributes, "caution").find("not medical advice") != std::string::npos);
-  CHECK(io::text_attribute(uv.attributes, "quality").find("indicative") != std::string::npos);
+  // The default spectrum is ASTM E490 (not an approximation): no "indicative" flag; the Planck
+  // approximation, asked for, gets it.
+  CHECK(uv.attributes.count("quality") == 0);
+  {
+    experiment::Experiment ep = e;
+    ep.solar = experiment::SolarChoice::planck;
+    const fs::path out_p = scratch("demo_planck.h5");
+    io::write_result_file(out_p, ep, experiment::run_experiment(ep));
+    const io::StoredVariable uvp = io::read_variable(out_p, "uv_index");
+    CHECK(io::text_attribute(uvp.attributes, "quality").find("indicative") != std::string::npos);
+  }
   const io::StoredVariable spec = io::read_variable(out, "spectral_flux_direct_down");
   CHECK(spec.dimensions == std::vector<std::string>{"wavelength", "level"});
   // Every numeric variable has units and long_name.
@@ -145,11 +155,11 @@ surface: {albedo: 0}
 }
 
 TEST_CASE("Rayleigh-only transmittance of the direct beam at 550 nm is Beer-Lambert of tau_R", "[experiment]") {
-  // One narrow bin at 550 nm, no ozone, no aerosol: direct transmittance = exp(-tau_R / mu0)
+  // One narrow bin at 550 nm, no ozone, no other gas, no aerosol: direct transmittance = exp(-tau_R / mu0)
   // (exact for the unscattered beam); tau_R at sea level ~0.0971 (Bodhaine et al. 1999 eq. 30,
   // via shared/checkvalues.md section 1, for 1013.25 hPa, 45 deg, 360 ppm).
   const std::string text = R"(
-atmosphere: {ozone: false, co2_ppmv: 360, latitude_deg: 45, surface_pressure_hpa: 1013.25}
+atmosphere: {ozone: false, co2_ppmv: 360, latitude_deg: 45, surface_pressure_hpa: 1013.25, absorbers: {h2o: none, o2: none}}
 spectrum:
   bins: [{from_nm: 549.5, to_nm: 550.5, step_nm: 1}]
   bands: [{name: green, from_nm: 549.5, to_nm: 550.5}]

@@ -165,3 +165,58 @@ TEST_CASE("a user table that stops inside the grid reports its coverage per bin"
   CHECK(s.bin_irradiance[0] == 0.0);
   CHECK_THROWS_AS(tabulated_solar(t, make_grid({{500, 600, 50}})), std::invalid_argument);
 }
+
+namespace {
+const std::string kBuiltinData = std::string(SOLSTRATA_SOURCE_DIR) + "/solver/data";
+}  // namespace
+
+TEST_CASE("the built-in E490 spectrum holds 1361 W m-2 over the whole file", "[spectrum][e490]") {
+  // Rescaled to the IAU 2015 nominal 1361 W m-2 (Resolution B3; Kopp & Lean 2011: 1360.8 +- 0.5)
+  // from the file's own 1366.09 W m-2 (shared/data/README.md, computed).
+  // The grid stops 1 nm short of the file's last sample (grids end below 1e6 nm); the missing
+  // sliver holds ~3e-12 W m-2.
+  const Grid whole = make_grid({{119.5, 999999, 999999 - 119.5}});
+  const SolarSource s = builtin_e490_solar(whole, kBuiltinData);
+  CHECK(s.total() == Approx(1361.0).epsilon(1e-3));
+  CHECK(s.total() == Approx(kNominalTotalSolarIrradiance).epsilon(1e-12));
+  CHECK(e490_scale_factor(e490()) == Approx(1361.0 / 1366.09).epsilon(1e-5));
+  CHECK_FALSE(s.approximate);
+  CHECK(s.kind == SolarSourceKind::builtin_e490);
+  CHECK(to_string(s.kind) == "builtin_e490");
+  CHECK(parse_solar_source_kind("builtin_e490") == SolarSourceKind::builtin_e490);
+  CHECK_THAT(s.description, Catch::Contains("ASTM E490-00a") && Catch::Contains("1361 W m-2"));
+}
+
+TEST_CASE("the built-in E490 spectrum's bands are the file's band integrals, scaled", "[spectrum][e490]") {
+  // The file's integrals over each band (trapezoid rule cut exactly at the band edges,
+  // computed: 99.870, 530.114, 717.636 W m-2) times 1361 / 1366.09; within 0.1 %.
+  const double f = 1361.0 / 1366.09;
+  const Grid g = make_grid(default_segments(), default_bands());
+  const SolarSource s = builtin_e490_solar(g, kBuiltinData);
+  REQUIRE(s.bin_irradiance.size() == g.size());
+  const auto band = [&](double lo, double hi) {
+    double t = 0.0;
+    for (std::size_t b = 0; b < g.size(); ++b) {
+      if (g.bins()[b].lower_nm >= lo && g.bins()[b].upper_nm <= hi) t += s.bin_irradiance[b];
+    }
+    return t;
+  };
+  CHECK(band(280, 400) == Approx(99.870 * f).epsilon(1e-3));
+  CHECK(band(400, 700) == Approx(530.114 * f).epsilon(1e-3));
+  CHECK(band(700, 4000) == Approx(717.636 * f).epsilon(1e-3));
+  CHECK(band(250, 4000) == Approx(integrate(e490(), 250, 4000) * f).epsilon(1e-3));
+  // The shipped copy is the test copy (same numbers): every bin is the scaled test-data integral.
+  const SolarSource t = tabulated_solar(e490(), g);
+  const double exact = e490_scale_factor(e490());
+  for (std::size_t b = 0; b < g.size(); ++b) CHECK(s.bin_irradiance[b] == Approx(t.bin_irradiance[b] * exact).epsilon(1e-12));
+}
+
+TEST_CASE("a missing data directory names the file it looked for", "[spectrum][e490]") {
+  const Grid g = make_grid(default_segments(), default_bands());
+  try {
+    (void)builtin_e490_solar(g, "/nonexistent/solstrata-data");
+    FAIL("expected an error");
+  } catch (const std::runtime_error& e) {
+    CHECK_THAT(e.what(), Catch::Contains("/nonexistent/solstrata-data/solar/astm_e490_00a.csv"));
+  }
+}
