@@ -149,3 +149,10 @@ TEST_CASE("a user solar table that does not cover the grid is an input error unl
                                      "exp.yaml", dir).solar == experiment::SolarChoice::file);
   std::filesystem::remove_all(dir);
 }
+
+TEST_CASE("ozone cross sections follow the layer temperature unless switched off", "[experiment]") {
+  const std::string sun = "sun:\n  solar_zenith_deg: 30\n";
+  CHECK(experiment::parse_experiment(sun, "a.yaml", ".").optics.ozone_temperature_dependence);
+  CHECK_FALSE(experiment::parse_experiment("atmosphere:\n  ozone_temperature_dependence: false\n" + sun, "b.yaml", ".")
+                  .optics.ozone_temperature_dependence);
+}
