@@ -1,5 +1,6 @@
 // Experiment keys added with water vapour and the built-in solar spectrum.
 #include <algorithm>
+#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <unistd.h>
@@ -155,4 +156,15 @@ TEST_CASE("ozone cross sections follow the layer temperature unless switched off
   CHECK(experiment::parse_experiment(sun, "a.yaml", ".").optics.ozone_temperature_dependence);
   CHECK_FALSE(experiment::parse_experiment("atmosphere:\n  ozone_temperature_dependence: false\n" + sun, "b.yaml", ".")
                   .optics.ozone_temperature_dependence);
+}
+
+TEST_CASE("the data directory comes from SOLSTRATA_DATA_DIR when it is set", "[experiment][solar]") {
+  const char* old = std::getenv("SOLSTRATA_DATA_DIR");
+  const std::string saved = old ? old : "";
+  ::setenv("SOLSTRATA_DATA_DIR", "/somewhere/else", 1);
+  CHECK(experiment::default_data_dir() == std::filesystem::path("/somewhere/else"));
+  ::unsetenv("SOLSTRATA_DATA_DIR");
+  // Otherwise the source tree's solver/data (compile definition), which holds the E490 file.
+  CHECK(std::filesystem::is_regular_file(experiment::default_data_dir() / "solar/astm_e490_00a.csv"));
+  if (old) ::setenv("SOLSTRATA_DATA_DIR", saved.c_str(), 1);
 }
