@@ -19,15 +19,15 @@ struct KTableBin {
 
 /// One gas's table.
 struct KTable {
-  std::string gas;                  ///< molecule formula, e.g. "H2O"
-  std::string title;                ///< one line
-  std::vector<std::string> source;  ///< provenance lines
+  std::string gas;                     ///< molecule formula, e.g. "H2O"
+  std::string title;                   ///< one line
+  std::vector<std::string> source;     ///< provenance lines
   std::vector<std::string> generator;  ///< how the table was made, one or more lines
-  std::string weighting;            ///< "wavenumber" or "solar <spectrum name>"
+  std::string weighting;               ///< "wavenumber" or "solar <spectrum name>"
   std::vector<double> pressure_hpa;    ///< hPa: pressure nodes, strictly increasing, > 0
   std::vector<double> temperature_k;   ///< K: temperature nodes, strictly increasing, > 0
-  std::vector<double> h2o_vmr;         ///< dimensionless (mol/mol): water-vapour nodes; empty = one node
-  std::vector<KTableBin> bins;         ///< ordered, non-overlapping bins
+  std::vector<double> h2o_vmr;  ///< dimensionless (mol/mol): water-vapour nodes; empty = one node
+  std::vector<KTableBin> bins;  ///< ordered, non-overlapping bins
 };
 
 }  // namespace solstrata::optics
