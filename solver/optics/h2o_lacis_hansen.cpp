@@ -24,6 +24,11 @@ constexpr PriorBand kPriorBands[] = {
 };
 /// nm: bins whose centre lies below this carry only the weakest term.
 constexpr double kNearInfraredStartNm = 700.0;
+/// decades: 1-sigma width of the prior in log10 k around the bin's central k (design choice).
+constexpr double kPriorWidthDecades = 0.7;
+/// dimensionless: floor of the prior, so that every term may appear in every near-infrared bin
+/// (keeps the fit feasible; terms it leaves below kPruneWeight are dropped afterwards).
+constexpr double kPriorFloor = 1e-8;
 /// dimensionless: terms below this weight in a bin are dropped.
 constexpr double kPruneWeight = 1e-6;
 
@@ -109,8 +114,8 @@ KTable h2o_lacis_hansen(const spectrum::Grid& grid, const std::vector<double>& b
     }
     const double lc = prior_log10_k(bins[b].center_nm);
     for (std::size_t i = 0; i < nt; ++i) {
-      const double d = std::log10(kLacisHansenK[i]) - lc;
-      prior[b][i] = std::exp(-0.5 * d * d) + 1e-4;  // floor: every term may appear in the NIR
+      const double d = (std::log10(kLacisHansenK[i]) - lc) / kPriorWidthDecades;
+      prior[b][i] = std::exp(-0.5 * d * d) + kPriorFloor;
     }
   }
   std::vector<std::vector<double>> w;
