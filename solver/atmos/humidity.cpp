@@ -29,7 +29,8 @@ double saturation_pressure_water_pa(double t_k) {
   const double T = t_k, lt = std::log(T);
   // Murphy & Koop (2005), eq. (10).
   return std::exp(54.842763 - 6763.22 / T - 4.210 * lt + 0.000367 * T +
-                  std::tanh(0.0415 * (T - 218.8)) * (53.878 - 1331.22 / T - 9.44523 * lt + 0.014025 * T));
+                  std::tanh(0.0415 * (T - 218.8)) *
+                      (53.878 - 1331.22 / T - 9.44523 * lt + 0.014025 * T));
 }
 
 double saturation_pressure_ice_pa(double t_k) {
@@ -61,8 +62,9 @@ double ppmv_from_relative_humidity(double rh_percent, double t_k, double p_hpa) 
   const double e_pa = 0.01 * rh_percent * saturation_pressure_water_pa(t_k);
   const double x = e_pa / (100.0 * p_hpa);
   if (x >= 1.0) {
-    throw std::invalid_argument("relative humidity " + num(rh_percent) + " % at " + num(t_k) + " K means a vapour pressure of " +
-                                num(e_pa / 100.0) + " hPa, not below the total pressure " + num(p_hpa) + " hPa");
+    throw std::invalid_argument("relative humidity " + num(rh_percent) + " % at " + num(t_k) +
+                                " K means a vapour pressure of " + num(e_pa / 100.0) +
+                                " hPa, not below the total pressure " + num(p_hpa) + " hPa");
   }
   return 1e6 * x;
 }
@@ -79,8 +81,10 @@ std::vector<double> default_h2o_ppmv(const Profile& p, double total_cm) {
   std::vector<double> x(p.n_levels());
   for (std::size_t i = 0; i < x.size(); ++i) {
     // Ideal gas: n_v / n = (rho_v / M_w) / (p / (R T)); rho_0 = 1 g m-3 here, scaled below.
-    const double rho_v = 1e-3 * std::exp(-(p.altitude_km[i] - zs) / kDefaultWaterScaleHeightKm);  // kg m-3
-    x[i] = 1e6 * rho_v / (kWaterMolarMass * 1e-3) * kGasConstant * p.temperature_k[i] / (100.0 * p.pressure_hpa[i]);
+    const double rho_v =
+        1e-3 * std::exp(-(p.altitude_km[i] - zs) / kDefaultWaterScaleHeightKm);  // kg m-3
+    x[i] = 1e6 * rho_v / (kWaterMolarMass * 1e-3) * kGasConstant * p.temperature_k[i] /
+           (100.0 * p.pressure_hpa[i]);
     if (!(p.pressure_hpa[i] > 0.0)) x[i] = 0.0;  // a level at p = 0 (top of the atmosphere)
   }
   q.h2o_ppmv = x;
@@ -90,11 +94,13 @@ std::vector<double> default_h2o_ppmv(const Profile& p, double total_cm) {
 
 void scale_h2o_to(Profile& p, double target_cm) {
   if (!std::isfinite(target_cm) || target_cm <= 0.0 || target_cm > 100.0) {
-    throw std::invalid_argument("target precipitable water " + num(target_cm) + " cm must be in (0, 100]");
+    throw std::invalid_argument("target precipitable water " + num(target_cm) +
+                                " cm must be in (0, 100]");
   }
   const double now = total_h2o_cm(p);
   if (!(now > 0.0)) {
-    throw std::invalid_argument("profile '" + p.name + "' has no water vapour to rescale (h2o_ppmv is empty or all zero)");
+    throw std::invalid_argument("profile '" + p.name +
+                                "' has no water vapour to rescale (h2o_ppmv is empty or all zero)");
   }
   for (double& v : p.h2o_ppmv) v *= target_cm / now;
 }

@@ -192,7 +192,7 @@ void read_atmosphere(Section& s, Experiment& e, const fs::path& base, ProfileCac
   const auto pwv = s.optional_number("precipitable_water_cm", 0.0, Range::open_closed(0, 15), "cm");
   e.optics.rayleigh = s.optional_bool("rayleigh", true).value;
   e.optics.ozone = s.optional_bool("ozone", true).value;
-  e.optics.ozone_temperature_dependence = s.optional_bool("ozone_temperature_dependence", false).value;
+  e.optics.ozone_temperature_dependence = s.optional_bool("ozone_temperature_dependence", true).value;
   e.absorbers.clear();
   if (auto ab = s.optional_subsection("absorbers")) read_absorbers(*ab, e, base);
   s.check_no_unknown_keys();

@@ -22,7 +22,8 @@ struct OpticsOptions {
   /// include the aerosol of the AerosolSpec (its tau_ref may still be 0)
   bool aerosol = true;
   /// apply the ozone cross sections' temperature coefficients at each layer's mean temperature
-  bool ozone_temperature_dependence = false;
+  /// (on by default: every profile carries temperatures)
+  bool ozone_temperature_dependence = true;
   /// DU: when > 0, the profile's ozone is rescaled to this total column first
   double total_ozone_du = 0.0;
   /// k-distribution tables of the absorbing gases (H2O, O2, CO2); each adds k-terms as spectral

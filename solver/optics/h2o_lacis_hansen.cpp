@@ -19,11 +19,16 @@ struct PriorBand {
   double centre_nm, sigma_nm, log10_k;
 };
 constexpr PriorBand kPriorBands[] = {
-    {720, 12, -1.0}, {820, 15, -0.7}, {940, 30, 0.3},  {1130, 40, 0.5},
+    {720, 12, -1.0}, {820, 15, -0.7}, {940, 30, 0.3},   {1130, 40, 0.5},
     {1380, 60, 1.8}, {1870, 80, 2.0}, {2700, 150, 2.5}, {3200, 150, 1.2},
 };
 /// nm: bins whose centre lies below this carry only the weakest term.
 constexpr double kNearInfraredStartNm = 700.0;
+/// decades: 1-sigma width of the prior in log10 k around the bin's central k (design choice).
+constexpr double kPriorWidthDecades = 0.7;
+/// dimensionless: floor of the prior, so that every term may appear in every near-infrared bin
+/// (keeps the fit feasible; terms it leaves below kPruneWeight are dropped afterwards).
+constexpr double kPriorFloor = 1e-8;
 /// dimensionless: terms below this weight in a bin are dropped.
 constexpr double kPruneWeight = 1e-6;
 
@@ -50,7 +55,9 @@ double fit(std::vector<std::vector<double>>& w, const std::vector<std::vector<do
     for (std::size_t i = 0; i < nt; ++i) {
       double m = 0.0;
       for (std::size_t b = 0; b < nb; ++b) m += s[b] * a[b] * prior[b][i];
-      if (!(m > 0.0)) throw std::invalid_argument("water-vapour table: no bin can carry term " + std::to_string(i));
+      if (!(m > 0.0))
+        throw std::invalid_argument("water-vapour table: no bin can carry term " +
+                                    std::to_string(i));
       c[i] = kLacisHansenWeights[i] * s_total / m;
     }
     for (std::size_t b = 0; b < nb; ++b) {
@@ -90,10 +97,12 @@ KTable h2o_lacis_hansen(const spectrum::Grid& grid, const std::vector<double>& b
   }
   double s_total = 0.0;
   for (double v : bin_solar_w_m2) {
-    if (!std::isfinite(v) || v < 0.0) throw std::invalid_argument("water-vapour table: solar irradiance must be finite and >= 0");
+    if (!std::isfinite(v) || v < 0.0)
+      throw std::invalid_argument("water-vapour table: solar irradiance must be finite and >= 0");
     s_total += v;
   }
-  if (std::none_of(bins.begin(), bins.end(), [](const spectrum::Bin& b) { return b.center_nm >= kNearInfraredStartNm; })) {
+  if (std::none_of(bins.begin(), bins.end(),
+                   [](const spectrum::Bin& b) { return b.center_nm >= kNearInfraredStartNm; })) {
     throw std::invalid_argument("water-vapour table: the grid has no bin at 700 nm or above");
   }
   const std::size_t nb = bins.size(), nt = kLacisHansenK.size();
@@ -105,8 +114,8 @@ KTable h2o_lacis_hansen(const spectrum::Grid& grid, const std::vector<double>& b
     }
     const double lc = prior_log10_k(bins[b].center_nm);
     for (std::size_t i = 0; i < nt; ++i) {
-      const double d = std::log10(kLacisHansenK[i]) - lc;
-      prior[b][i] = std::exp(-0.5 * d * d) + 1e-4;  // floor: every term may appear in the NIR
+      const double d = (std::log10(kLacisHansenK[i]) - lc) / kPriorWidthDecades;
+      prior[b][i] = std::exp(-0.5 * d * d) + kPriorFloor;
     }
   }
   std::vector<std::vector<double>> w;
@@ -133,15 +142,19 @@ KTable h2o_lacis_hansen(const spectrum::Grid& grid, const std::vector<double>& b
   KTable t;
   t.origin = "built in";
   t.gas = "H2O";
-  t.title = "H2O, Lacis & Hansen (1974) exponential sum spread over the grid: broadband representation; "
-            "spectral detail in the near infrared approximate";
-  t.source = {"Lacis, A. A. and Hansen, J. E. (1974), J. Atmos. Sci. 31, 118-133: 8-term exponential sum "
-              "(k, weights as fractions of the total solar flux; values from memory)",
-              "pressure scaling (p/1013 hPa)(273 K/T)^0.5 (Lacis & Hansen 1974; from memory); M = 18.015 g/mol",
-              "broadband representation; spectral detail in the near infrared approximate"};
-  t.generator = {"solstrata built-in (optics/h2o_lacis_hansen.cpp): iterative proportional fitting "
-                 "(Deming & Stephan 1940) of a band-centre prior; bins < 700 nm carry only k = 4e-5 cm2/g; "
-                 "terms below 1e-6 dropped"};
+  t.title =
+      "H2O, Lacis & Hansen (1974) exponential sum spread over the grid: broadband representation; "
+      "spectral detail in the near infrared approximate";
+  t.source = {
+      "Lacis, A. A. and Hansen, J. E. (1974), J. Atmos. Sci. 31, 118-133: 8-term exponential sum "
+      "(k, weights as fractions of the total solar flux; values from memory)",
+      "pressure scaling (p/1013 hPa)(273 K/T)^0.5 (Lacis & Hansen 1974; from memory); M = 18.015 "
+      "g/mol",
+      "broadband representation; spectral detail in the near infrared approximate"};
+  t.generator = {
+      "solstrata built-in (optics/h2o_lacis_hansen.cpp): iterative proportional fitting "
+      "(Deming & Stephan 1940) of a band-centre prior; bins < 700 nm carry only k = 4e-5 cm2/g; "
+      "terms below 1e-6 dropped"};
   t.weighting = "solar " + spectrum_name;
   t.pressure_hpa = {1e-5, 1e-4, 1e-3, 1e-2, 0.1, 1.0, 10.0, 100.0, kLacisHansenP0, 1100.0};
   for (double T = 153.0; T <= 353.0 + 1e-9; T += 10.0) t.temperature_k.push_back(T);
@@ -157,7 +170,8 @@ KTable h2o_lacis_hansen(const spectrum::Grid& grid, const std::vector<double>& b
       k.reserve(t.pressure_hpa.size() * t.temperature_k.size());
       for (double p : t.pressure_hpa) {
         for (double T : t.temperature_k) {
-          k.push_back(kLacisHansenK[i] * per_molecule * (p / kLacisHansenP0) * std::sqrt(kLacisHansenT0 / T));
+          k.push_back(kLacisHansenK[i] * per_molecule * (p / kLacisHansenP0) *
+                      std::sqrt(kLacisHansenT0 / T));
         }
       }
       kb.k.push_back(std::move(k));

@@ -13,7 +13,8 @@ namespace solstrata::optics {
 /// cm2 g-1: absorption coefficients of the exponential sum of Lacis & Hansen (1974),
 /// J. Atmos. Sci. 31, 118, Table 2 - FROM MEMORY (checked only in that the sum reproduces their
 /// absorptance formula, kLacisHansenAbsorptance, to ~1e-4 for y = 0.01..10 g cm-2).
-inline constexpr std::array<double, 8> kLacisHansenK = {4e-5, 0.002, 0.035, 0.377, 1.95, 9.40, 44.6, 190.0};
+inline constexpr std::array<double, 8> kLacisHansenK = {4e-5, 0.002, 0.035, 0.377,
+                                                        1.95, 9.40,  44.6,  190.0};
 /// dimensionless: their weights, fractions of the TOTAL solar flux (from memory, as above).
 inline constexpr std::array<double, 8> kLacisHansenWeights = {0.6470, 0.0698, 0.1443, 0.0584,
                                                               0.0335, 0.0225, 0.0158, 0.0087};

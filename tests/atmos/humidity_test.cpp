@@ -64,8 +64,11 @@ TEST_CASE("the default water-vapour shape has a 2 km density scale height and th
   const std::size_t s = p.n_levels() - 1;
   std::size_t k = s;
   while (k > 0 && p.altitude_km[k] < 4.0) --k;
-  const auto rho = [&](std::size_t i) { return p.h2o_ppmv[i] * p.pressure_hpa[i] / p.temperature_k[i]; };
-  CHECK(rho(k) / rho(s) == Approx(std::exp(-(p.altitude_km[k] - p.altitude_km[s]) / 2.0)).epsilon(1e-12));
+  const auto rho = [&](std::size_t i) {
+    return p.h2o_ppmv[i] * p.pressure_hpa[i] / p.temperature_k[i];
+  };
+  CHECK(rho(k) / rho(s) ==
+        Approx(std::exp(-(p.altitude_km[k] - p.altitude_km[s]) / 2.0)).epsilon(1e-12));
 }
 
 TEST_CASE("rescaling to a precipitable water is exact", "[atmos][humidity]") {

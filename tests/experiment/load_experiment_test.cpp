@@ -1,9 +1,11 @@
 // Experiment keys added with water vapour and the built-in solar spectrum.
+#include <unistd.h>
+
 #include <algorithm>
+#include <catch2/catch.hpp>
+#include <cstdlib>
 #include <filesystem>
 #include <fstream>
-#include <unistd.h>
-#include <catch2/catch.hpp>
 #include <string>
 
 #include "atmos/humidity.hpp"
@@ -18,7 +20,8 @@ namespace {
 std::pair<int, int> where(const std::string& text, const std::string& needle) {
   const std::size_t at = text.find(needle);
   REQUIRE(at != std::string::npos);
-  const int line = 1 + static_cast<int>(std::count(text.begin(), text.begin() + static_cast<long>(at), '\n'));
+  const int line =
+      1 + static_cast<int>(std::count(text.begin(), text.begin() + static_cast<long>(at), '\n'));
   const std::size_t nl = text.rfind('\n', at == 0 ? 0 : at - 1);
   const std::size_t col0 = (nl == std::string::npos || at == 0) ? at : at - nl - 1;
   return {line, static_cast<int>(col0) + 1};
@@ -45,25 +48,29 @@ std::string levels_with(const std::string& humidity_lines) {
 
 }  // namespace
 
-TEST_CASE("profile levels accept specific or relative humidity, converted to ppmv", "[experiment][humidity]") {
-  const experiment::Experiment q =
-      experiment::parse_experiment(levels_with("    specific_humidity_kg_kg: [1e-5, 0.002, 0.01]\n"), "q.yaml", ".");
+TEST_CASE("profile levels accept specific or relative humidity, converted to ppmv",
+          "[experiment][humidity]") {
+  const experiment::Experiment q = experiment::parse_experiment(
+      levels_with("    specific_humidity_kg_kg: [1e-5, 0.002, 0.01]\n"), "q.yaml", ".");
   REQUIRE(q.profile.h2o_ppmv.size() == 3);
   // Computed from x = q / (q + (1 - q) eps) (atmos/humidity.hpp).
   CHECK(q.profile.h2o_ppmv[2] == Approx(15980.6).epsilon(1e-5));
   CHECK(q.profile.h2o_ppmv[0] == Approx(atmos::ppmv_from_specific_humidity(1e-5)).epsilon(1e-14));
 
-  const experiment::Experiment rh =
-      experiment::parse_experiment(levels_with("    relative_humidity_percent: [10, 40, 70]\n"), "rh.yaml", ".");
+  const experiment::Experiment rh = experiment::parse_experiment(
+      levels_with("    relative_humidity_percent: [10, 40, 70]\n"), "rh.yaml", ".");
   REQUIRE(rh.profile.h2o_ppmv.size() == 3);
   // 70 % at 290 K and 1000 hPa: x = 0.7 e_w(290 K) / p = 0.7 * 1920.09 Pa / 1e5 Pa = 13441 ppmv
   // (computed from Murphy & Koop 2005, eq. 10, by hand).
   CHECK(rh.profile.h2o_ppmv[2] == Approx(13440.6).epsilon(1e-5));
-  CHECK(rh.profile.h2o_ppmv[0] == Approx(atmos::ppmv_from_relative_humidity(10, 220, 100)).epsilon(1e-14));
+  CHECK(rh.profile.h2o_ppmv[0] ==
+        Approx(atmos::ppmv_from_relative_humidity(10, 220, 100)).epsilon(1e-14));
 }
 
-TEST_CASE("two humidity keys in one levels mapping are an error at the second", "[experiment][humidity]") {
-  const std::string text = levels_with("    h2o_ppmv: [5, 100, 1000]\n    relative_humidity_percent: [1, 2, 3]\n");
+TEST_CASE("two humidity keys in one levels mapping are an error at the second",
+          "[experiment][humidity]") {
+  const std::string text =
+      levels_with("    h2o_ppmv: [5, 100, 1000]\n    relative_humidity_percent: [1, 2, 3]\n");
   const experiment::InputError e = error_of(text);
   INFO(e.what());
   CHECK(e.line() == where(text, "relative_humidity_percent").first);
@@ -85,35 +92,39 @@ TEST_CASE("an impossible relative humidity is an error at its element", "[experi
   CHECK_THAT(e.message(), Catch::Contains("not below the total pressure"));
 }
 
-TEST_CASE("precipitable_water_cm rescales the profile's water vapour exactly", "[experiment][humidity]") {
+TEST_CASE("precipitable_water_cm rescales the profile's water vapour exactly",
+          "[experiment][humidity]") {
   const experiment::Experiment e = experiment::parse_experiment(
-      "atmosphere:\n  precipitable_water_cm: 2.5\n  surface_pressure_hpa: 900\nsun:\n  solar_zenith_deg: 30\n",
+      "atmosphere:\n  precipitable_water_cm: 2.5\n  surface_pressure_hpa: 900\nsun:\n  "
+      "solar_zenith_deg: 30\n",
       "pwv.yaml", ".");
   // The value asked for, after the pressure scaling (exact rescaling: layer columns are linear
   // in the mixing ratios).
   CHECK(atmos::total_h2o_cm(e.profile) == Approx(2.5).epsilon(1e-13));
   // A profile without water vapour gets the default shape with that column.
   const experiment::Experiment d = experiment::parse_experiment(
-      levels_with("") .insert(12, "  precipitable_water_cm: 0.7\n"), "dry.yaml", ".");
+      levels_with("").insert(12, "  precipitable_water_cm: 0.7\n"), "dry.yaml", ".");
   CHECK(atmos::total_h2o_cm(d.profile) == Approx(0.7).epsilon(1e-13));
   CHECK(d.profile.h2o_ppmv.size() == 3);
 }
 
 TEST_CASE("precipitable_water_cm out of range is an error at its value", "[experiment][humidity]") {
-  const std::string text = "atmosphere:\n  precipitable_water_cm: 16\nsun:\n  solar_zenith_deg: 30\n";
+  const std::string text =
+      "atmosphere:\n  precipitable_water_cm: 16\nsun:\n  solar_zenith_deg: 30\n";
   const experiment::InputError e = error_of(text);
   CHECK(e.line() == 2);
   CHECK(e.column() == where(text, "16").second);
   CHECK_THAT(e.message(), Catch::Contains("0 < precipitable_water_cm <= 15"));
 }
 
-TEST_CASE("the solar spectrum is the built-in E490 table unless another is asked for", "[experiment][solar]") {
+TEST_CASE("the solar spectrum is the built-in E490 table unless another is asked for",
+          "[experiment][solar]") {
   const std::string sun = "sun:\n  solar_zenith_deg: 30\n";
   CHECK(experiment::parse_experiment(sun, "a.yaml", ".").solar == experiment::SolarChoice::e490);
-  CHECK(experiment::parse_experiment(sun + "spectrum:\n  solar_spectrum: builtin\n", "b.yaml", ".").solar ==
-        experiment::SolarChoice::e490);
-  CHECK(experiment::parse_experiment(sun + "spectrum:\n  solar_spectrum: planck\n", "c.yaml", ".").solar ==
-        experiment::SolarChoice::planck);
+  CHECK(experiment::parse_experiment(sun + "spectrum:\n  solar_spectrum: builtin\n", "b.yaml", ".")
+            .solar == experiment::SolarChoice::e490);
+  CHECK(experiment::parse_experiment(sun + "spectrum:\n  solar_spectrum: planck\n", "c.yaml", ".")
+            .solar == experiment::SolarChoice::planck);
   const std::string bad = sun + "spectrum:\n  solar_spectrum: plank\n";
   const experiment::InputError e = error_of(bad);
   CHECK(e.line() == 4);
@@ -126,10 +137,12 @@ TEST_CASE("the solar spectrum is the built-in E490 table unless another is asked
 
 TEST_CASE("a user solar table that does not cover the grid is an input error unless fill: zero",
           "[experiment][solar]") {
-  const std::filesystem::path dir = std::filesystem::temp_directory_path() / ("solstrata_load_" + std::to_string(::getpid()));
+  const std::filesystem::path dir =
+      std::filesystem::temp_directory_path() / ("solstrata_load_" + std::to_string(::getpid()));
   std::filesystem::create_directories(dir);
   std::ofstream(dir / "short.csv") << "wavelength_nm,irradiance\n300,1.0\n3000,0.1\n";
-  const std::string text = "sun:\n  solar_zenith_deg: 30\nspectrum:\n  solar_spectrum:\n    file: short.csv\n";
+  const std::string text =
+      "sun:\n  solar_zenith_deg: 30\nspectrum:\n  solar_spectrum:\n    file: short.csv\n";
   try {
     (void)experiment::parse_experiment(text, "exp.yaml", dir);
     FAIL("expected an InputError");
@@ -137,15 +150,41 @@ TEST_CASE("a user solar table that does not cover the grid is an input error unl
     INFO(e.what());
     CHECK(e.line() == 5);
     CHECK(e.column() == where(text, "short.csv").second);
-    CHECK_THAT(e.message(), Catch::Contains((dir / "short.csv").string()) && Catch::Contains("covers 300..3000 nm") &&
-                                Catch::Contains("spans 250..4000 nm") && Catch::Contains("fill: zero"));
+    CHECK_THAT(e.message(), Catch::Contains((dir / "short.csv").string()) &&
+                                Catch::Contains("covers 300..3000 nm") &&
+                                Catch::Contains("spans 250..4000 nm") &&
+                                Catch::Contains("fill: zero"));
   }
-  const experiment::Experiment ok = experiment::parse_experiment(text + "    fill: zero\n", "exp.yaml", dir);
+  const experiment::Experiment ok =
+      experiment::parse_experiment(text + "    fill: zero\n", "exp.yaml", dir);
   CHECK(ok.solar == experiment::SolarChoice::file);
   CHECK(ok.solar_fill_zero);
   // A table covering the grid needs no fill.
   std::ofstream(dir / "wide.csv") << "wavelength_nm,irradiance\n200,1.0\n5000,0.1\n";
-  CHECK(experiment::parse_experiment("sun:\n  solar_zenith_deg: 30\nspectrum:\n  solar_spectrum:\n    file: wide.csv\n",
-                                     "exp.yaml", dir).solar == experiment::SolarChoice::file);
+  CHECK(experiment::parse_experiment(
+            "sun:\n  solar_zenith_deg: 30\nspectrum:\n  solar_spectrum:\n    file: wide.csv\n",
+            "exp.yaml", dir)
+            .solar == experiment::SolarChoice::file);
   std::filesystem::remove_all(dir);
+}
+
+TEST_CASE("ozone cross sections follow the layer temperature unless switched off", "[experiment]") {
+  const std::string sun = "sun:\n  solar_zenith_deg: 30\n";
+  CHECK(experiment::parse_experiment(sun, "a.yaml", ".").optics.ozone_temperature_dependence);
+  CHECK_FALSE(experiment::parse_experiment(
+                  "atmosphere:\n  ozone_temperature_dependence: false\n" + sun, "b.yaml", ".")
+                  .optics.ozone_temperature_dependence);
+}
+
+TEST_CASE("the data directory comes from SOLSTRATA_DATA_DIR when it is set",
+          "[experiment][solar]") {
+  const char* old = std::getenv("SOLSTRATA_DATA_DIR");
+  const std::string saved = old ? old : "";
+  ::setenv("SOLSTRATA_DATA_DIR", "/somewhere/else", 1);
+  CHECK(experiment::default_data_dir() == std::filesystem::path("/somewhere/else"));
+  ::unsetenv("SOLSTRATA_DATA_DIR");
+  // Otherwise the source tree's solver/data (compile definition), which holds the E490 file.
+  CHECK(
+      std::filesystem::is_regular_file(experiment::default_data_dir() / "solar/astm_e490_00a.csv"));
+  if (old) ::setenv("SOLSTRATA_DATA_DIR", saved.c_str(), 1);
 }

@@ -56,7 +56,9 @@ TEST_CASE("column optics are laid out layer by layer and sum to the component co
   const spectrum::Grid g = spectrum::make_grid({{300, 700, 50}});
   optics::AerosolSpec a = optics::from_preset(optics::AerosolType::continental_average, 0.2);
   a.reference_nm = 525;  // a bin centre
-  const optics::ColumnOptics o = optics::build_column_optics(p, g, a, {});
+  optics::OpticsOptions opt;
+  opt.ozone_temperature_dependence = false;  // the table's reference-temperature cross sections
+  const optics::ColumnOptics o = optics::build_column_optics(p, g, a, opt);
   REQUIRE(o.n_layers == p.n_layers());
   REQUIRE(o.n_points == g.size());
   REQUIRE(o.tau.size() == o.n_layers * o.n_points);
@@ -203,6 +205,8 @@ TEST_CASE("ozone rescaling and temperature dependence change the ozone optics", 
   // Bins 0 (320-330 nm, Huggins) and 2 (600-610 nm, Chappuis).
   const spectrum::Grid g = spectrum::make_grid({{320, 330, 10}, {330, 600, 270}, {600, 610, 10}});
   optics::OpticsOptions opt;
+  CHECK(opt.ozone_temperature_dependence);  // the default: on
+  opt.ozone_temperature_dependence = false;
   opt.total_ozone_du = 300;
   const optics::ColumnOptics o300 = optics::build_column_optics(p, g, {}, opt);
   opt.total_ozone_du = 0;

@@ -12,12 +12,14 @@ using namespace solstrata;
 namespace {
 
 struct Setup {
-  spectrum::Grid grid = spectrum::make_grid(spectrum::default_segments(), spectrum::default_bands());
+  spectrum::Grid grid =
+      spectrum::make_grid(spectrum::default_segments(), spectrum::default_bands());
   std::vector<double> solar;
   optics::KTable table;
   Setup() {
     // ASTM E490-00a on the default grid (tests/data, provenance in tests/data/README.md).
-    const auto e490 = spectrum::read_spectrum_csv(std::string(SOLSTRATA_TEST_DATA) + "/astm-e490-00a.csv");
+    const auto e490 =
+        spectrum::read_spectrum_csv(std::string(SOLSTRATA_TEST_DATA) + "/astm-e490-00a.csv");
     solar = spectrum::tabulated_solar(e490, grid).bin_irradiance;
     table = optics::h2o_lacis_hansen(grid, solar);
   }
@@ -46,7 +48,8 @@ TEST_CASE("the exponential sum reproduces the Lacis-Hansen absorptance formula",
   for (double ly = -2.0; ly <= 1.0 + 1e-9; ly += 0.05) {
     const double y = std::pow(10.0, ly);
     double a = 0.0;
-    for (std::size_t i = 0; i < 8; ++i) a += optics::kLacisHansenWeights[i] * (1.0 - std::exp(-optics::kLacisHansenK[i] * y));
+    for (std::size_t i = 0; i < 8; ++i)
+      a += optics::kLacisHansenWeights[i] * (1.0 - std::exp(-optics::kLacisHansenK[i] * y));
     worst = std::max(worst, std::abs(a - optics::lacis_hansen_absorptance(y)));
   }
   INFO("largest difference " << worst);
@@ -57,7 +60,8 @@ TEST_CASE("the exponential sum reproduces the Lacis-Hansen absorptance formula",
   CHECK(sw == Approx(1.0).epsilon(1e-12));
 }
 
-TEST_CASE("the built-in table's whole-grid absorptance is the Lacis-Hansen formula", "[optics][h2o]") {
+TEST_CASE("the built-in table's whole-grid absorptance is the Lacis-Hansen formula",
+          "[optics][h2o]") {
   const Setup s;
   const optics::KTable& t = s.table;
   REQUIRE(t.bins.size() == s.grid.size());
@@ -90,7 +94,9 @@ TEST_CASE("the built-in table's bins are valid k-distributions of the format", "
   const Setup s;
   const optics::KTable& t = s.table;
   CHECK(t.gas == "H2O");
-  CHECK_THAT(t.title, Catch::Contains("broadband representation; spectral detail in the near infrared approximate"));
+  CHECK_THAT(t.title,
+             Catch::Contains(
+                 "broadband representation; spectral detail in the near infrared approximate"));
   CHECK(t.weighting == "solar ASTM E490-00a");
   CHECK(t.h2o_vmr.empty());
   // docs/gas-tables.md: weights > 0 summing to 1 within 1e-9, one k row per term of np x nt.
@@ -120,14 +126,17 @@ TEST_CASE("the built-in table's bins are valid k-distributions of the format", "
     for (std::size_t i = 0; i < t.bins[b].weights.size(); ++i) {
       const double k = t.bins[b].k[i][ip * t.temperature_k.size() + it] * per_g;
       for (std::size_t j = 0; j < 8; ++j) {
-        if (std::abs(k / optics::kLacisHansenK[j] - 1.0) < 1e-12) share[j] += s.solar[b] * t.bins[b].weights[i];
+        if (std::abs(k / optics::kLacisHansenK[j] - 1.0) < 1e-12)
+          share[j] += s.solar[b] * t.bins[b].weights[i];
       }
     }
   }
-  for (std::size_t j = 0; j < 8; ++j) CHECK(share[j] / s_total == Approx(optics::kLacisHansenWeights[j]).margin(1e-9));
+  for (std::size_t j = 0; j < 8; ++j)
+    CHECK(share[j] / s_total == Approx(optics::kLacisHansenWeights[j]).margin(1e-9));
 }
 
-TEST_CASE("the table's k follows the Lacis-Hansen pressure and temperature scaling", "[optics][h2o]") {
+TEST_CASE("the table's k follows the Lacis-Hansen pressure and temperature scaling",
+          "[optics][h2o]") {
   const Setup s;
   const optics::KTable& t = s.table;
   const std::size_t nt = t.temperature_k.size();
@@ -138,19 +147,23 @@ TEST_CASE("the table's k follows the Lacis-Hansen pressure and temperature scali
   const std::size_t i0 = index_of(t.pressure_hpa, 1013.0), i1 = index_of(t.pressure_hpa, 100.0);
   const std::size_t j0 = index_of(t.temperature_k, 273.0), j1 = index_of(t.temperature_k, 223.0);
   for (const auto& k : kb.k) {
-    CHECK(k[i1 * nt + j1] / k[i0 * nt + j0] == Approx(100.0 / 1013.0 * std::sqrt(273.0 / 223.0)).epsilon(1e-12));
+    CHECK(k[i1 * nt + j1] / k[i0 * nt + j0] ==
+          Approx(100.0 / 1013.0 * std::sqrt(273.0 / 223.0)).epsilon(1e-12));
     CHECK(std::sqrt(273.0 / 223.0) == Approx(1.106443).epsilon(1e-6));
   }
   // Linear in p, so log k is linear in log p between nodes: log-log interpolation is exact.
-  const double r = std::log(kb.k[0][i0 * nt + j0] / kb.k[0][i1 * nt + j0]) / std::log(1013.0 / 100.0);
+  const double r =
+      std::log(kb.k[0][i0 * nt + j0] / kb.k[0][i1 * nt + j0]) / std::log(1013.0 / 100.0);
   CHECK(r == Approx(1.0).epsilon(1e-12));
   // The 1.38 um band centre absorbs more strongly than the 1.6 um window (band positions from
   // memory): solar-weighted mean k.
   const auto mean_k = [&](const optics::KTableBin& b) {
     double m = 0.0;
-    for (std::size_t i = 0; i < b.weights.size(); ++i) m += b.weights[i] * b.k[i][i0 * nt + j0] * per_g;
+    for (std::size_t i = 0; i < b.weights.size(); ++i)
+      m += b.weights[i] * b.k[i][i0 * nt + j0] * per_g;
     return m;
   };
   CHECK(mean_k(kb) > 10.0 * mean_k(t.bins[bin_containing(s.grid, 1600.0)]));
-  CHECK(mean_k(t.bins[bin_containing(s.grid, 2700.0)]) > 10.0 * mean_k(t.bins[bin_containing(s.grid, 2200.0)]));
+  CHECK(mean_k(t.bins[bin_containing(s.grid, 2700.0)]) >
+        10.0 * mean_k(t.bins[bin_containing(s.grid, 2200.0)]));
 }
