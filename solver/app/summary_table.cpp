@@ -31,6 +31,12 @@ void print_check_summary(std::ostream& os, const experiment::Experiment& e) {
                                        (e.aerosol_type.empty() ? "" : " (" + e.aerosol_type + ")")
                                  : std::string("none"))
        << "\n";
+    os << "  gases:       ";
+    for (std::size_t i = 0; i < e.absorbers.size(); ++i) {
+      const experiment::Absorber& a = e.absorbers[i];
+      os << (i ? ", " : "") << a.gas << " " << (a.mode == "file" ? a.file.string() : a.mode);
+    }
+    os << fmt("; precipitable water %.3f cm", atmos::total_h2o_cm(e.profile)) << "\n";
     os << "  spectrum:    " << g.size() << fmt(" bins, %g", g.lower_nm()) << fmt("-%g nm, ", g.upper_nm())
        << (e.solar == experiment::SolarChoice::planck ? std::string("built-in approximate solar spectrum (Planck)")
            : e.solar == experiment::SolarChoice::e490 ? std::string("built-in solar spectrum ASTM E490-00a scaled to 1361 W m-2")

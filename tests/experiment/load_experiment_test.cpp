@@ -188,3 +188,26 @@ TEST_CASE("the data directory comes from SOLSTRATA_DATA_DIR when it is set",
       std::filesystem::is_regular_file(experiment::default_data_dir() / "solar/astm_e490_00a.csv"));
   if (old) ::setenv("SOLSTRATA_DATA_DIR", saved.c_str(), 1);
 }
+
+TEST_CASE("atmosphere.absorbers picks built-in, none or a table file per gas, and rejects bad choices", "[experiment]") {
+  const std::string sun = "\nsun: {solar_zenith_deg: 30}\n";
+  const experiment::Experiment d = experiment::parse_experiment("sun: {solar_zenith_deg: 30}\n", "exp.yaml", ".");
+  REQUIRE(d.absorbers.size() == 3);
+  CHECK(d.absorbers[0].gas == "H2O");
+  CHECK(d.absorbers[0].mode == "builtin");
+  CHECK(d.absorbers[1].mode == "builtin");
+  CHECK(d.absorbers[2].mode == "none");
+  // A table file: the shipped O2 table given by path.
+  const std::string o2 = std::string(SOLSTRATA_SOURCE_DIR) + "/solver/data/gases/o2_hitran2012.ktab";
+  const experiment::Experiment f =
+      experiment::parse_experiment("atmosphere:\n  absorbers: {o2: " + o2 + "}" + sun, "exp.yaml", ".");
+  CHECK(f.absorbers[1].mode == "file");
+  REQUIRE(f.absorbers[1].table);
+  CHECK(f.absorbers[1].table->gas == "O2");
+  // The same table named for the wrong gas, a missing file, built-in CO2, an unknown gas.
+  const std::string wrong = "atmosphere:\n  absorbers: {h2o: " + o2 + "}" + sun;
+  CHECK_THAT(error_of(wrong).what(), Catch::Contains("exp.yaml:2:") && Catch::Contains("is for O2, not H2O"));
+  CHECK_THAT(error_of("atmosphere:\n  absorbers: {co2: nowhere.ktab}" + sun).what(), Catch::Contains("does not exist"));
+  CHECK_THAT(error_of("atmosphere:\n  absorbers: {co2: builtin}" + sun).what(), Catch::Contains("no built-in CO2"));
+  CHECK_THAT(error_of("atmosphere:\n  absorbers: {ch4: none}" + sun).what(), Catch::Contains("ch4"));
+}
