@@ -87,9 +87,15 @@ inline LayerCore layer_core(const KernelCoefficients& c, double tau, double omeg
   }
   const double wg = L.omega * L.g;
   L.g1 = c.g1[0] + c.g1[1] * L.omega + c.g1[2] * wg;
-  L.g2 = c.g2[0] + c.g2[1] * L.omega + c.g2[2] * wg;
-  const double dif = c.dif[0] + c.dif[1] * L.omega + c.dif[2] * wg;
-  const double sum = c.sum[0] + c.sum[1] * L.omega + c.sum[2] * wg;
+  const double g2 = c.g2[0] + c.g2[1] * L.omega + c.g2[2] * wg;
+  // gamma2 limited to >= 0 (rt::kernel_gammas): the Eddington forms turn negative for
+  // omega < 1/(4 - 3g) and would give negative diffuse fluxes. Where the limit acts, gamma1 -
+  // gamma2 = gamma1 + gamma2 = gamma1 and k = gamma1 (streams decoupled, pure attenuation).
+  // Elsewhere, and always at omega = 1, nothing changes (dif stays exactly 0 there).
+  const bool limited = g2 < 0.0;
+  L.g2 = limited ? 0.0 : g2;
+  const double dif = limited ? L.g1 : c.dif[0] + c.dif[1] * L.omega + c.dif[2] * wg;
+  const double sum = limited ? L.g1 : c.sum[0] + c.sum[1] * L.omega + c.sum[2] * wg;
   L.k = std::sqrt(std::max(0.0, dif * sum));
   const double y = L.k * L.tau;
   const double e = exp_nonpositive(-y);
@@ -124,7 +130,10 @@ inline LayerCore layer_core(const KernelCoefficients& c, double tau, double omeg
 /// `inv_sing` is 1/(1 - k^2 mu0^2), passed in so that the caller can keep it finite.
 inline void beam_response(const KernelCoefficients& c, const LayerCore& L, double mu0,
                           double t0, double inv_sing, double& r_beam, double& t_beam) {
-  const double g3 = c.g3[0] + c.g3[1] * L.g * mu0;
+  // gamma3 limited to <= 1, i.e. gamma4 >= 0 (rt::kernel_gammas): the published forms exceed 1
+  // for back-scattering layers at high sun (g mu0 < -2/3 for Eddington) and would transmit a
+  // negative diffuse flux.
+  const double g3 = std::min(1.0, c.g3[0] + c.g3[1] * L.g * mu0);
   const double g4 = 1.0 - g3;
   const double a1 = L.g1 * g4 + L.g2 * g3;
   const double a2 = L.g1 * g3 + L.g2 * g4;
