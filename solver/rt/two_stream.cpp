@@ -173,6 +173,7 @@ struct BlockArrays {
   double *alb, *src;        // level: diffuse albedo below, beam-generated upward source below
   double *dn;               // level: diffuse downward flux, per unit direct flux at the top
   double *inv_mu0;          // problem: 1/mu0
+  double *mu_layer;         // problem: effective beam cosine 1/m of the current layer (beam_path)
 };
 
 BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
@@ -194,10 +195,11 @@ BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
   a.src = take(nl + 1);
   a.dn = take(nl + 1);
   a.inv_mu0 = take(1);
+  a.mu_layer = take(1);
   return a;
 }
 
-std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (9 * nl + 6) * nb; }
+std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (9 * nl + 7) * nb; }
 
 /// One step of the upward adding sweep over the problems of a block: combines a layer
 /// (r, t diffuse; rb, tb beam) with what lies below it (diffuse albedo alb_b, beam-generated
@@ -229,6 +231,12 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
   const KernelCoefficients c = coef;  // a local copy: provably not aliased by the output stores
   double* __restrict inv_mu0 = w.inv_mu0;
   for (std::size_t j = 0; j < nb; ++j) inv_mu0[j] = 1.0 / mu0[j];
+  // Pseudo-spherical beam (ColumnBatch::beam_path): layer l sees slant factor m and effective
+  // cosine 1/m. Plane-parallel (empty): m = 1/mu0 and the cosine is mu0 itself, bit for bit.
+  const bool slant = !in.beam_path.empty();
+  const auto path_of = [&](std::size_t l) -> const double* {
+    return slant ? in.beam_path.data() + l * np + p0 : inv_mu0;
+  };
 
   // 1. Layer responses, and the direct beam (delta-scaled, and true) at each level per unit
   //    direct flux at the top.
@@ -245,14 +253,19 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
     double* __restrict tb = w.tb + l * nb;
     const double* __restrict d0 = w.dir + l * nb;
     double* __restrict d1 = w.dir + (l + 1) * nb;
+    const double* __restrict m = path_of(l);
+    if (slant) {
+      for (std::size_t j = 0; j < nb; ++j) w.mu_layer[j] = 1.0 / m[j];
+    }
+    const double* __restrict mu = slant ? w.mu_layer : mu0;
     int n_near = 0;
 #pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
-      const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu0[j]);
-      const double t0 = exp_nonpositive(-L.tau * inv_mu0[j]);
+      const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu[j]);
+      const double t0 = exp_nonpositive(-L.tau * m[j]);
       n_near += L.near ? 1 : 0;
       double rbj, tbj;
-      beam_response(c, L, mu0[j], t0, L.inv_sing, rbj, tbj);
+      beam_response(c, L, mu[j], t0, L.inv_sing, rbj, tbj);
       r[j] = L.r;
       t[j] = L.t;
       rb[j] = rbj;
@@ -262,9 +275,9 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
     // Rare: a problem within kSingularBand of k mu0 = 1 gets the scalar interpolated form.
     if (n_near > 0) {
       for (std::size_t j = 0; j < nb; ++j) {
-        const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu0[j]);
+        const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu[j]);
         if (L.near) {
-          beam_response_near_singularity(c, L, mu0[j], rb[j], tb[j]);
+          beam_response_near_singularity(c, L, mu[j], rb[j], tb[j]);
         }
       }
     }
@@ -324,6 +337,7 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
     const double* __restrict dabove = w.dn + l * nb;
     const double* __restrict dir_above = w.dir + l * nb;
     const double* __restrict tau = in.tau.data() + l * np + p0;
+    const double* __restrict m = path_of(l);
 #pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
       const double d = (t[j] * dabove[j] + tb[j] * dir_above[j] + r[j] * src[j]) * den[j];
@@ -333,7 +347,7 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
       // for bit, so a non-scattering column has exactly no diffuse light.
       double beam = dir[j];
       if constexpr (kDelta) {
-        trans[j] *= exp_nonpositive(-tau[j] * inv_mu0[j]);
+        trans[j] *= exp_nonpositive(-tau[j] * m[j]);
         beam = trans[j];
       }
       dn[j] = d;
@@ -409,6 +423,20 @@ Status validate(const ColumnBatch& in, const LevelFluxes& out) {
                          {out.diffuse_up, (nl + 1) * np, "diffuse_up"}};
   for (const Sized& z : sized) {
     if (auto m = size_is(z.s, z.n, z.name); !m.empty()) return {false, m};
+  }
+  // The optional per-layer arrays: empty, or one value per layer and problem.
+  if (!in.beam_path.empty()) {
+    if (auto m = size_is(in.beam_path, nl * np, "beam_path"); !m.empty()) return {false, m};
+  }
+  if (!in.rayleigh_fraction.empty()) {
+    if (auto m = size_is(in.rayleigh_fraction, nl * np, "rayleigh_fraction"); !m.empty()) return {false, m};
+  }
+  for (std::size_t i = 0; i < in.beam_path.size(); ++i) {
+    if (!(in.beam_path[i] >= 1.0 && std::isfinite(in.beam_path[i]))) return {false, describe("beam_path", i, in.beam_path[i], "1 <= beam_path < inf")};
+  }
+  for (std::size_t i = 0; i < in.rayleigh_fraction.size(); ++i) {
+    const double f = in.rayleigh_fraction[i];
+    if (!(f >= 0.0 && f <= 1.0)) return {false, describe("rayleigh_fraction", i, f, "0 <= rayleigh_fraction <= 1")};
   }
   for (std::size_t i = 0; i < nl * np; ++i) {
     if (!(in.tau[i] >= 0.0 && std::isfinite(in.tau[i]))) return {false, describe("tau", i, in.tau[i], "0 <= tau < inf")};
