@@ -129,14 +129,33 @@ struct LayerModes {
 ///   f).
 /// Without delta-M, f = 0: the series is simply truncated after l = 2N - 1.
 /// omega = 1 is kept exactly 1 (the quotient could round below it and lose conservation).
-void scale_layer(double tau, double omega, double g, int n, bool delta_m, LayerModes& L) {
+///
+/// With a Rayleigh share f_R > 0 (see solve_columns_reference) the moments are the mixture
+/// chi_l = f_R chi_l^R + (1 - f_R) g_a^l; f = chi_2N of the mixture, (1 - f_R) g_a^2N, since the
+/// Rayleigh moments vanish beyond l = 2 < 2N. f_R = 0 takes the Henyey-Greenstein lines unchanged.
+void scale_layer(double tau, double omega, double g, double f_r, double rho, int n, bool delta_m,
+                 LayerModes& L) {
   const int nm = 2 * n;
-  const double f = delta_m ? std::pow(g, nm) : 0.0;
   L.chi.resize(nm);
-  double gl = 1.0;
-  for (int l = 0; l < nm; ++l) {
-    L.chi[l] = (gl - f) / (1.0 - f);
-    gl *= g;
+  double f = 0.0;
+  if (f_r == 0.0) {
+    f = delta_m ? std::pow(g, nm) : 0.0;
+    double gl = 1.0;
+    for (int l = 0; l < nm; ++l) {
+      L.chi[l] = (gl - f) / (1.0 - f);
+      gl *= g;
+    }
+  } else {
+    constexpr double kMaxG = 1.0 - 1e-9;
+    const double rest = 1.0 - f_r;
+    const double ga = rest > 0.0 ? std::clamp(g / rest, -kMaxG, kMaxG) : 0.0;
+    f = delta_m ? rest * std::pow(ga, nm) : 0.0;
+    double gl = 1.0;
+    for (int l = 0; l < nm; ++l) {
+      const double rayleigh = l == 0 ? 1.0 : l == 2 ? rayleigh_moment2(rho) : 0.0;
+      L.chi[l] = (f_r * rayleigh + rest * gl - f) / (1.0 - f);
+      gl *= ga;
+    }
   }
   L.chi[0] = 1.0;
   L.tau = (1.0 - omega * f) * tau;
@@ -418,10 +437,20 @@ std::string describe_failure(std::size_t problem, const char* what) {
 
 }  // namespace
 
+double rayleigh_moment2(double depolarization) {
+  // chi_2 = beta_2 / (2 l + 1) with beta_2 = (1 - rho_n)/(2 + rho_n) (see the declaration).
+  return (1.0 - depolarization) / (5.0 * (2.0 + depolarization));
+}
+
 std::string ReferenceOptions::validate() const {
   if (streams < 4 || streams > 64 || streams % 2 != 0) {
     std::ostringstream os;
     os << "ReferenceOptions::streams = " << streams << " must be an even number from 4 to 64";
+    return os.str();
+  }
+  if (!(depolarization >= 0.0 && depolarization <= 0.5)) {
+    std::ostringstream os;
+    os << "ReferenceOptions::depolarization = " << depolarization << " must be in [0, 0.5]";
     return os.str();
   }
   return {};
@@ -455,7 +484,9 @@ Status solve_columns_reference(const ColumnBatch& in, const ReferenceOptions& op
     for (std::size_t l = 0; l < nl; ++l) {
       const std::size_t i = l * np + p;
       const double mu = slant ? mu_layer[l] : mu0;
-      scale_layer(in.tau[i], in.omega[i], in.g[i], n, options.delta_m, layers[l]);
+      const double f_r = in.rayleigh_fraction.empty() ? 0.0 : in.rayleigh_fraction[i];
+      scale_layer(in.tau[i], in.omega[i], in.g[i], f_r, options.depolarization, n, options.delta_m,
+                  layers[l]);
       solve_modes(st, layers[l]);
       mode_values(layers[l], tops[l], bots[l]);
       if (layers[l].omega > 0.0) {
