@@ -51,8 +51,9 @@ Gammas gammas(Closure c, double omega, double g, double mu0);
 
 /// The gammas the two-stream kernel actually uses: `gammas` with gamma2 limited to >= 0.
 ///
-/// gamma2 is the rate at which scattering feeds one stream from the other (Meador & Weaver 1980,
-/// eq. 3: dF+/dtau = gamma1 F+ - gamma2 F- - ...); for a non-negative phase function it cannot be
+/// gamma2 is the rate at which scattering feeds one stream from the other (in the two-stream
+/// equations of Meador & Weaver 1980, dF+/dtau = gamma1 F+ - gamma2 F- - source); for a
+/// non-negative phase function it cannot be
 /// negative, and without scattering (omega = 0) it is exactly 0. The Eddington forms (plain and
 /// delta-scaled) give gamma2 = -(1 - omega(4 - 3g))/4 < 0 for omega < 1/(4 - 3g), which produces
 /// negative diffuse reflectance and negative diffuse fluxes in strongly absorbing layers (a pure
@@ -64,7 +65,7 @@ Gammas gammas(Closure c, double omega, double g, double mu0);
 /// omega (1 - g) >= 0).
 ///
 /// Likewise gamma3 and gamma4 = 1 - gamma3 are the fractions of the singly scattered beam sent
-/// into the upper and lower hemisphere (Meador & Weaver 1980, sec. 2), so gamma4 >= 0: the
+/// into the upper and lower hemisphere (Meador & Weaver 1980), so gamma4 >= 0: the
 /// published forms give gamma3 > 1 for back-scattering layers at high sun (Eddington, PIFM and
 /// hemispheric mean for g mu0 < -2/3, quadrature for g mu0 < -1/sqrt(3)), and a negative
 /// transmitted diffuse flux; gamma3 := min(gamma3, 1). The opposite end, gamma3 < 0 for strong

@@ -99,6 +99,12 @@ TEST_CASE("a pure absorber over a bright surface has no diffuse downward light",
     CHECK(b.up[1] == Approx(0.8 * 0.5 * std::exp(-2.0)).epsilon(1e-14));
     CHECK(b.up[0] >= 0.0);
     CHECK(b.up[0] <= b.up[1]);  // attenuated on its way up
+    // The scalar path shares the closure: no stream coupling, no scattering of the beam.
+    const LayerResponse r = solve_layer(1.0, 0.0, 0.0, 0.5, c);
+    CHECK(r.r_diffuse == 0.0);
+    CHECK(r.r_beam == 0.0);
+    CHECK(r.t_beam == 0.0);
+    CHECK(r.t_diffuse > 0.0);
   }
 }
 
@@ -131,8 +137,8 @@ TEST_CASE("random multi-layer columns never have negative fluxes or emitting lay
   // g range: delta-Eddington sees g' = g/(1 + g) < 1/2, so its full range is tested. The
   // unscaled closures are tested for g <= 0.5: beyond g mu0 = 2/3 (Eddington, PIFM, hemispheric
   // mean) or 1/sqrt(3) (quadrature) their published gamma3 turns negative, a known limitation of
-  // those closures for strong forward scattering at high sun (Meador & Weaver 1980, sec. 4;
-  // the test "quadrature reproduces its known failure..." keeps it visible).
+  // those closures for strong forward scattering at high sun (checkvalues.md section 2, "Known
+  // weakness"; the test "quadrature reproduces its known failure..." keeps it visible).
   std::mt19937_64 rng(20261202);
   std::uniform_real_distribution<double> u(0.0, 1.0);
   for (Closure c : kAllClosures) {
