@@ -1,5 +1,6 @@
 #include "rt/closure.hpp"
 
+#include <algorithm>
 #include <cmath>
 
 namespace solstrata::rt {
@@ -56,6 +57,14 @@ Gammas gammas(Closure c, double omega, double g, double mu0) {
   const double g2 = k.g2[0] + k.g2[1] * omega + k.g2[2] * omega * g;
   const double g3 = k.g3[0] + k.g3[1] * g * mu0;
   return {g1, g2, g3, 1.0 - g3};
+}
+
+Gammas kernel_gammas(Closure c, double omega, double g, double mu0) {
+  Gammas v = gammas(c, omega, g, mu0);
+  v.g2 = std::max(0.0, v.g2);  // non-negative stream coupling (see the declaration)
+  v.g3 = std::min(1.0, v.g3);  // non-negative forward fraction gamma4 (see the declaration)
+  v.g4 = 1.0 - v.g3;
+  return v;
 }
 
 }  // namespace solstrata::rt

@@ -49,4 +49,29 @@ struct Gammas {
 };
 Gammas gammas(Closure c, double omega, double g, double mu0);
 
+/// The gammas the two-stream kernel actually uses: `gammas` with gamma2 limited to >= 0.
+///
+/// gamma2 is the rate at which scattering feeds one stream from the other (in the two-stream
+/// equations of Meador & Weaver 1980, dF+/dtau = gamma1 F+ - gamma2 F- - source); for a
+/// non-negative phase function it cannot be
+/// negative, and without scattering (omega = 0) it is exactly 0. The Eddington forms (plain and
+/// delta-scaled) give gamma2 = -(1 - omega(4 - 3g))/4 < 0 for omega < 1/(4 - 3g), which produces
+/// negative diffuse reflectance and negative diffuse fluxes in strongly absorbing layers (a pure
+/// absorber over a bright surface gets a negative diffuse flux instead of 0). The remedy is
+/// gamma2 := max(gamma2, 0) with gamma1 unchanged: continuous in omega (gamma2 passes through 0
+/// at the threshold), exact for omega = 0 (no coupling of the streams), and the identity wherever
+/// gamma2 >= 0 already -- so for every closure at omega = 1 (gamma1 = gamma2 > 0) and for the
+/// quadrature, hemispheric-mean and PIFM closures everywhere (their gamma2 is proportional to
+/// omega (1 - g) >= 0).
+///
+/// Likewise gamma3 and gamma4 = 1 - gamma3 are the fractions of the singly scattered beam sent
+/// into the upper and lower hemisphere (Meador & Weaver 1980), so gamma4 >= 0: the
+/// published forms give gamma3 > 1 for back-scattering layers at high sun (Eddington, PIFM and
+/// hemispheric mean for g mu0 < -2/3, quadrature for g mu0 < -1/sqrt(3)), and a negative
+/// transmitted diffuse flux; gamma3 := min(gamma3, 1). The opposite end, gamma3 < 0 for strong
+/// forward scattering at high sun (g mu0 > 2/3, or > 1/sqrt(3) for quadrature), is left as
+/// published: it is the documented weakness of the unscaled closures (negative reflectance, see
+/// the quadrature tests), and delta-Eddington never reaches it (g' = g/(1 + g) < 1/2).
+Gammas kernel_gammas(Closure c, double omega, double g, double mu0);
+
 }  // namespace solstrata::rt

@@ -129,14 +129,33 @@ struct LayerModes {
 ///   f).
 /// Without delta-M, f = 0: the series is simply truncated after l = 2N - 1.
 /// omega = 1 is kept exactly 1 (the quotient could round below it and lose conservation).
-void scale_layer(double tau, double omega, double g, int n, bool delta_m, LayerModes& L) {
+///
+/// With a Rayleigh share f_R > 0 (see solve_columns_reference) the moments are the mixture
+/// chi_l = f_R chi_l^R + (1 - f_R) g_a^l; f = chi_2N of the mixture, (1 - f_R) g_a^2N, since the
+/// Rayleigh moments vanish beyond l = 2 < 2N. f_R = 0 takes the Henyey-Greenstein lines unchanged.
+void scale_layer(double tau, double omega, double g, double f_r, double rho, int n, bool delta_m,
+                 LayerModes& L) {
   const int nm = 2 * n;
-  const double f = delta_m ? std::pow(g, nm) : 0.0;
   L.chi.resize(nm);
-  double gl = 1.0;
-  for (int l = 0; l < nm; ++l) {
-    L.chi[l] = (gl - f) / (1.0 - f);
-    gl *= g;
+  double f = 0.0;
+  if (f_r == 0.0) {
+    f = delta_m ? std::pow(g, nm) : 0.0;
+    double gl = 1.0;
+    for (int l = 0; l < nm; ++l) {
+      L.chi[l] = (gl - f) / (1.0 - f);
+      gl *= g;
+    }
+  } else {
+    constexpr double kMaxG = 1.0 - 1e-9;
+    const double rest = 1.0 - f_r;
+    const double ga = rest > 0.0 ? std::clamp(g / rest, -kMaxG, kMaxG) : 0.0;
+    f = delta_m ? rest * std::pow(ga, nm) : 0.0;
+    double gl = 1.0;
+    for (int l = 0; l < nm; ++l) {
+      const double rayleigh = l == 0 ? 1.0 : l == 2 ? rayleigh_moment2(rho) : 0.0;
+      L.chi[l] = (f_r * rayleigh + rest * gl - f) / (1.0 - f);
+      gl *= ga;
+    }
   }
   L.chi[0] = 1.0;
   L.tau = (1.0 - omega * f) * tau;
@@ -307,10 +326,16 @@ struct SparseSolver {
   bool analysed = false;
 };
 
+///
+/// Pseudo-spherical beam: `mu_layer` (empty = plane-parallel) holds each layer's effective beam
+/// cosine 1/m_l, already scaled like mu0 when the caller shifts mu0 off a singularity. Layer l is
+/// then a plane-parallel layer lit at cosine mu_l by the direct flux at its top, mu0 F0
+/// exp(-sum tau' m) on a horizontal surface, i.e. by the normal irradiance (mu0/mu_l) F0
+/// exp(-sum tau' m); the scaled beam is tracked as that horizontal flux per unit mu0 F0.
 bool diffuse_column(SparseSolver& sparse, const Streams& st, const std::vector<LayerModes>& layers,
                     const std::vector<Mat>& tops, const std::vector<Mat>& bots, double mu0,
-                    double alb_dir, double alb_dif, std::vector<double>& up,
-                    std::vector<double>& down) {
+                    const std::vector<double>& mu_layer, double alb_dir, double alb_dif,
+                    std::vector<double>& up, std::vector<double>& down) {
   const int n = st.n;
   const int nn = 2 * n;
   const std::size_t nl = layers.size();
@@ -318,10 +343,13 @@ bool diffuse_column(SparseSolver& sparse, const Streams& st, const std::vector<L
   std::vector<Vec> zt(nl), zb(nl);
   std::vector<double> beam(nl + 1);  // scaled beam transmission exp(-t'/mu0) at each level
   beam[0] = 1.0;
+  const bool slant = !mu_layer.empty();
   for (std::size_t l = 0; l < nl; ++l) {
-    const double tl = std::exp(-layers[l].tau / mu0);
+    const double mu = slant ? mu_layer[l] : mu0;
+    const double tl = std::exp(-layers[l].tau / mu);
     beam[l + 1] = beam[l] * tl;
-    const Vec z = particular(st, layers[l], mu0);
+    Vec z = particular(st, layers[l], mu);
+    if (slant) z *= mu0 / mu;  // normal irradiance in the layer's frame, per unit F0
     zt[l] = beam[l] * z;
     zb[l] = beam[l + 1] * z;
   }
@@ -409,10 +437,20 @@ std::string describe_failure(std::size_t problem, const char* what) {
 
 }  // namespace
 
+double rayleigh_moment2(double depolarization) {
+  // chi_2 = beta_2 / (2 l + 1) with beta_2 = (1 - rho_n)/(2 + rho_n) (see the declaration).
+  return (1.0 - depolarization) / (5.0 * (2.0 + depolarization));
+}
+
 std::string ReferenceOptions::validate() const {
   if (streams < 4 || streams > 64 || streams % 2 != 0) {
     std::ostringstream os;
     os << "ReferenceOptions::streams = " << streams << " must be an even number from 4 to 64";
+    return os.str();
+  }
+  if (!(depolarization >= 0.0 && depolarization <= 0.5)) {
+    std::ostringstream os;
+    os << "ReferenceOptions::depolarization = " << depolarization << " must be in [0, 0.5]";
     return os.str();
   }
   return {};
@@ -431,19 +469,28 @@ Status solve_columns_reference(const ColumnBatch& in, const ReferenceOptions& op
   SparseSolver sparse;
   std::vector<Mat> tops(nl), bots(nl);
   std::vector<double> up, down, up2, down2;
+  std::vector<double> mu_layer, mu_a, mu_b;  // effective beam cosines 1/m (empty: plane-parallel)
+  const bool slant = !in.beam_path.empty();
   std::vector<double> res_dir((nl + 1) * np), res_dif((nl + 1) * np), res_up((nl + 1) * np);
 
   for (std::size_t p = 0; p < np; ++p) {
     const double mu0 = in.mu0[p];
     const double f0 = in.solar[p];
-    double gap = 1.0;  // min |1 - k mu0| over all modes of the column
+    double gap = 1.0;  // min |1 - k mu| over all modes of the column
+    if (slant) {
+      mu_layer.resize(nl);
+      for (std::size_t l = 0; l < nl; ++l) mu_layer[l] = 1.0 / in.beam_path[l * np + p];
+    }
     for (std::size_t l = 0; l < nl; ++l) {
       const std::size_t i = l * np + p;
-      scale_layer(in.tau[i], in.omega[i], in.g[i], n, options.delta_m, layers[l]);
+      const double mu = slant ? mu_layer[l] : mu0;
+      const double f_r = in.rayleigh_fraction.empty() ? 0.0 : in.rayleigh_fraction[i];
+      scale_layer(in.tau[i], in.omega[i], in.g[i], f_r, options.depolarization, n, options.delta_m,
+                  layers[l]);
       solve_modes(st, layers[l]);
       mode_values(layers[l], tops[l], bots[l]);
       if (layers[l].omega > 0.0) {
-        gap = std::min(gap, (1.0 - layers[l].k.array() * mu0).abs().minCoeff());
+        gap = std::min(gap, (1.0 - layers[l].k.array() * mu).abs().minCoeff());
       }
     }
     if (nl == 0) {
@@ -454,7 +501,7 @@ Status solve_columns_reference(const ColumnBatch& in, const ReferenceOptions& op
     const double ad = in.albedo_direct[p], af = in.albedo_diffuse[p];
     bool ok;
     if (gap >= kSingularGap) {
-      ok = diffuse_column(sparse, st, layers, tops, bots, mu0, ad, af, up, down);
+      ok = diffuse_column(sparse, st, layers, tops, bots, mu0, mu_layer, ad, af, up, down);
     } else {
       // Removable singularity k_j = 1/mu0: interpolate linearly between two neighbours at least
       // kSingularGap from the pole, mu0 -+ h (or extrapolate from mu0 - 2h, mu0 - h when mu0 + h
@@ -462,8 +509,13 @@ Status solve_columns_reference(const ColumnBatch& in, const ReferenceOptions& op
       const double h = 2.0 * kSingularGap * mu0;
       const double ma = mu0 + h <= 1.0 ? mu0 - h : mu0 - 2.0 * h;
       const double mb = ma + (mu0 + h <= 1.0 ? 2.0 * h : h);
-      ok = diffuse_column(sparse, st, layers, tops, bots, ma, ad, af, up, down) &&
-           diffuse_column(sparse, st, layers, tops, bots, mb, ad, af, up2, down2);
+      // With a slant path every layer's cosine moves by the same factor as mu0.
+      mu_a = mu_layer;
+      mu_b = mu_layer;
+      for (double& m : mu_a) m *= ma / mu0;
+      for (double& m : mu_b) m *= mb / mu0;
+      ok = diffuse_column(sparse, st, layers, tops, bots, ma, mu_a, ad, af, up, down) &&
+           diffuse_column(sparse, st, layers, tops, bots, mb, mu_b, ad, af, up2, down2);
       const double wb = (mu0 - ma) / (mb - ma);
       for (std::size_t l = 0; ok && l <= nl; ++l) {
         up[l] += wb * (up2[l] - up[l]);
@@ -473,14 +525,18 @@ Status solve_columns_reference(const ColumnBatch& in, const ReferenceOptions& op
     if (!ok) return {false, describe_failure(p, "the boundary-value system is singular")};
 
     const double s = mu0 * f0;
-    double t_true = 0.0, t_scaled = 0.0;  // unscaled and scaled optical depth above the level
+    // Unscaled and scaled optical depth above the level; along the slant path (sum tau m) when
+    // beam_path is given (m = slant factor), vertical then divided by mu0 otherwise.
+    double t_true = 0.0, t_scaled = 0.0;
+    const double div = slant ? 1.0 : mu0;
     for (std::size_t l = 0; l <= nl; ++l) {
       if (l > 0) {
-        t_true += in.tau[(l - 1) * np + p];
-        t_scaled += layers[l - 1].tau;
+        const double m = slant ? in.beam_path[(l - 1) * np + p] : 1.0;
+        t_true += in.tau[(l - 1) * np + p] * m;
+        t_scaled += layers[l - 1].tau * m;
       }
-      const double direct = s * std::exp(-t_true / mu0);
-      const double scaled_beam = s * std::exp(-t_scaled / mu0);
+      const double direct = s * std::exp(-t_true / div);
+      const double scaled_beam = s * std::exp(-t_scaled / div);
       const std::size_t o = l * np + p;
       res_dir[o] = direct;
       // Up and scaled-diffuse down are fluxes per unit F0 on a horizontal surface.

@@ -87,9 +87,15 @@ inline LayerCore layer_core(const KernelCoefficients& c, double tau, double omeg
   }
   const double wg = L.omega * L.g;
   L.g1 = c.g1[0] + c.g1[1] * L.omega + c.g1[2] * wg;
-  L.g2 = c.g2[0] + c.g2[1] * L.omega + c.g2[2] * wg;
-  const double dif = c.dif[0] + c.dif[1] * L.omega + c.dif[2] * wg;
-  const double sum = c.sum[0] + c.sum[1] * L.omega + c.sum[2] * wg;
+  const double g2 = c.g2[0] + c.g2[1] * L.omega + c.g2[2] * wg;
+  // gamma2 limited to >= 0 (rt::kernel_gammas): the Eddington forms turn negative for
+  // omega < 1/(4 - 3g) and would give negative diffuse fluxes. Where the limit acts, gamma1 -
+  // gamma2 = gamma1 + gamma2 = gamma1 and k = gamma1 (streams decoupled, pure attenuation).
+  // Elsewhere, and always at omega = 1, nothing changes (dif stays exactly 0 there).
+  const bool limited = g2 < 0.0;
+  L.g2 = limited ? 0.0 : g2;
+  const double dif = limited ? L.g1 : c.dif[0] + c.dif[1] * L.omega + c.dif[2] * wg;
+  const double sum = limited ? L.g1 : c.sum[0] + c.sum[1] * L.omega + c.sum[2] * wg;
   L.k = std::sqrt(std::max(0.0, dif * sum));
   const double y = L.k * L.tau;
   const double e = exp_nonpositive(-y);
@@ -124,7 +130,10 @@ inline LayerCore layer_core(const KernelCoefficients& c, double tau, double omeg
 /// `inv_sing` is 1/(1 - k^2 mu0^2), passed in so that the caller can keep it finite.
 inline void beam_response(const KernelCoefficients& c, const LayerCore& L, double mu0,
                           double t0, double inv_sing, double& r_beam, double& t_beam) {
-  const double g3 = c.g3[0] + c.g3[1] * L.g * mu0;
+  // gamma3 limited to <= 1, i.e. gamma4 >= 0 (rt::kernel_gammas): the published forms exceed 1
+  // for back-scattering layers at high sun (g mu0 < -2/3 for Eddington) and would transmit a
+  // negative diffuse flux.
+  const double g3 = std::min(1.0, c.g3[0] + c.g3[1] * L.g * mu0);
   const double g4 = 1.0 - g3;
   const double a1 = L.g1 * g4 + L.g2 * g3;
   const double a2 = L.g1 * g3 + L.g2 * g4;
@@ -164,6 +173,7 @@ struct BlockArrays {
   double *alb, *src;        // level: diffuse albedo below, beam-generated upward source below
   double *dn;               // level: diffuse downward flux, per unit direct flux at the top
   double *inv_mu0;          // problem: 1/mu0
+  double *mu_layer;         // problem: effective beam cosine 1/m of the current layer (beam_path)
 };
 
 BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
@@ -185,10 +195,11 @@ BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
   a.src = take(nl + 1);
   a.dn = take(nl + 1);
   a.inv_mu0 = take(1);
+  a.mu_layer = take(1);
   return a;
 }
 
-std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (9 * nl + 6) * nb; }
+std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (9 * nl + 7) * nb; }
 
 /// One step of the upward adding sweep over the problems of a block: combines a layer
 /// (r, t diffuse; rb, tb beam) with what lies below it (diffuse albedo alb_b, beam-generated
@@ -220,6 +231,12 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
   const KernelCoefficients c = coef;  // a local copy: provably not aliased by the output stores
   double* __restrict inv_mu0 = w.inv_mu0;
   for (std::size_t j = 0; j < nb; ++j) inv_mu0[j] = 1.0 / mu0[j];
+  // Pseudo-spherical beam (ColumnBatch::beam_path): layer l sees slant factor m and effective
+  // cosine 1/m. Plane-parallel (empty): m = 1/mu0 and the cosine is mu0 itself, bit for bit.
+  const bool slant = !in.beam_path.empty();
+  const auto path_of = [&](std::size_t l) -> const double* {
+    return slant ? in.beam_path.data() + l * np + p0 : inv_mu0;
+  };
 
   // 1. Layer responses, and the direct beam (delta-scaled, and true) at each level per unit
   //    direct flux at the top.
@@ -236,14 +253,19 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
     double* __restrict tb = w.tb + l * nb;
     const double* __restrict d0 = w.dir + l * nb;
     double* __restrict d1 = w.dir + (l + 1) * nb;
+    const double* __restrict m = path_of(l);
+    if (slant) {
+      for (std::size_t j = 0; j < nb; ++j) w.mu_layer[j] = 1.0 / m[j];
+    }
+    const double* __restrict mu = slant ? w.mu_layer : mu0;
     int n_near = 0;
 #pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
-      const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu0[j]);
-      const double t0 = exp_nonpositive(-L.tau * inv_mu0[j]);
+      const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu[j]);
+      const double t0 = exp_nonpositive(-L.tau * m[j]);
       n_near += L.near ? 1 : 0;
       double rbj, tbj;
-      beam_response(c, L, mu0[j], t0, L.inv_sing, rbj, tbj);
+      beam_response(c, L, mu[j], t0, L.inv_sing, rbj, tbj);
       r[j] = L.r;
       t[j] = L.t;
       rb[j] = rbj;
@@ -253,9 +275,9 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
     // Rare: a problem within kSingularBand of k mu0 = 1 gets the scalar interpolated form.
     if (n_near > 0) {
       for (std::size_t j = 0; j < nb; ++j) {
-        const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu0[j]);
+        const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu[j]);
         if (L.near) {
-          beam_response_near_singularity(c, L, mu0[j], rb[j], tb[j]);
+          beam_response_near_singularity(c, L, mu[j], rb[j], tb[j]);
         }
       }
     }
@@ -315,6 +337,7 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
     const double* __restrict dabove = w.dn + l * nb;
     const double* __restrict dir_above = w.dir + l * nb;
     const double* __restrict tau = in.tau.data() + l * np + p0;
+    const double* __restrict m = path_of(l);
 #pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
       const double d = (t[j] * dabove[j] + tb[j] * dir_above[j] + r[j] * src[j]) * den[j];
@@ -324,7 +347,7 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
       // for bit, so a non-scattering column has exactly no diffuse light.
       double beam = dir[j];
       if constexpr (kDelta) {
-        trans[j] *= exp_nonpositive(-tau[j] * inv_mu0[j]);
+        trans[j] *= exp_nonpositive(-tau[j] * m[j]);
         beam = trans[j];
       }
       dn[j] = d;
@@ -400,6 +423,20 @@ Status validate(const ColumnBatch& in, const LevelFluxes& out) {
                          {out.diffuse_up, (nl + 1) * np, "diffuse_up"}};
   for (const Sized& z : sized) {
     if (auto m = size_is(z.s, z.n, z.name); !m.empty()) return {false, m};
+  }
+  // The optional per-layer arrays: empty, or one value per layer and problem.
+  if (!in.beam_path.empty()) {
+    if (auto m = size_is(in.beam_path, nl * np, "beam_path"); !m.empty()) return {false, m};
+  }
+  if (!in.rayleigh_fraction.empty()) {
+    if (auto m = size_is(in.rayleigh_fraction, nl * np, "rayleigh_fraction"); !m.empty()) return {false, m};
+  }
+  for (std::size_t i = 0; i < in.beam_path.size(); ++i) {
+    if (!(in.beam_path[i] >= 1.0 && std::isfinite(in.beam_path[i]))) return {false, describe("beam_path", i, in.beam_path[i], "1 <= beam_path < inf")};
+  }
+  for (std::size_t i = 0; i < in.rayleigh_fraction.size(); ++i) {
+    const double f = in.rayleigh_fraction[i];
+    if (!(f >= 0.0 && f <= 1.0)) return {false, describe("rayleigh_fraction", i, f, "0 <= rayleigh_fraction <= 1")};
   }
   for (std::size_t i = 0; i < nl * np; ++i) {
     if (!(in.tau[i] >= 0.0 && std::isfinite(in.tau[i]))) return {false, describe("tau", i, in.tau[i], "0 <= tau < inf")};

@@ -33,7 +33,9 @@ struct LayerResponse {
 
 /// Solves one layer (optical depth tau >= 0, single-scattering albedo omega in [0, 1], asymmetry
 /// g in (-1, 1), cosine of solar zenith mu0 in (0, 1]) with the chosen closure, after delta
-/// scaling where the closure calls for it (then t_direct is the scaled beam). Throws
+/// scaling where the closure calls for it (then t_direct is the scaled beam). For a layer with a
+/// pseudo-spherical slant factor m (ColumnBatch::beam_path) pass its effective cosine mu0 = 1/m:
+/// the responses are per unit direct flux at the layer's top, so nothing else changes. Throws
 /// std::invalid_argument on out-of-range input. Reference scalar path; the batch kernel uses the
 /// same formulas.
 LayerResponse solve_layer(double tau, double omega, double g, double mu0,
@@ -59,6 +61,19 @@ struct ColumnBatch {
   std::span<const double> solar;   ///< TOA irradiance normal to the beam (W m-2 or W m-2 nm-1), >= 0
   std::span<const double> albedo_direct;   ///< Lambertian surface albedo for the direct beam, [0, 1]
   std::span<const double> albedo_diffuse;  ///< Lambertian surface albedo for diffuse light, [0, 1]
+  /// Optional pseudo-spherical direct beam: slant factor m of each layer, the beam's path length
+  /// per unit vertical optical depth (dimensionless, finite, >= 1), [layer * n_problems +
+  /// problem]. Empty = plane-parallel, m = 1/mu0 everywhere. Layer l attenuates the beam by
+  /// exp(-tau_l m_l), and its scattering of the beam is that of a plane-parallel layer lit at the
+  /// effective cosine 1/m_l by the direct flux arriving at its top (the pseudo-spherical
+  /// approximation, e.g. Dahlback & Stamnes 1991, Planet. Space Sci. 39, 671). The incident flux
+  /// at the top stays mu0 * solar; the direct flux at level l is mu0 * solar * exp(-sum tau m).
+  std::span<const double> beam_path{};
+  /// Optional share of each layer's scattering optical depth due to Rayleigh scattering, [0, 1]
+  /// (dimensionless), [layer * n_problems + problem]. Empty = 0. Only the multi-stream reference
+  /// uses it (for the Rayleigh phase function); the two-stream closures see g alone (Rayleigh
+  /// scattering has g = 0, so `g` already is the layer's mean asymmetry).
+  std::span<const double> rayleigh_fraction{};
 };
 
 /// Level fluxes of a batch, [level * n_problems + problem], level 0 = top of atmosphere,

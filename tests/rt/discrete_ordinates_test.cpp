@@ -131,7 +131,9 @@ double expint_e3(double x) {
 struct Doubled {
   double r, t_diffuse;
 };
-Doubled doubling(double tau, double omega, double g, double mu0, int n) {
+/// `chi` (optional): the phase function's Legendre moments l = 0 .. 2n - 1 instead of g^l.
+Doubled doubling(double tau, double omega, double g, double mu0, int n,
+                 const std::vector<double>& chi = {}) {
   std::vector<double> x, w;
   gauss_01(n, x, w);
   x.push_back(mu0);
@@ -154,7 +156,7 @@ Doubled doubling(double tau, double omega, double g, double mu0, int n) {
     for (int j = 0; j < m; ++j) {
       double same = 0.0, opposite = 0.0, gl = 1.0;
       for (int l = 0; l < 2 * n; ++l, gl *= g) {
-        const double v = (2.0 * l + 1) * gl * pl[i][l] * pl[j][l];
+        const double v = (2.0 * l + 1) * (chi.empty() ? gl : chi[l]) * pl[i][l] * pl[j][l];
         same += v;
         opposite += (l % 2 == 0) ? v : -v;
       }
@@ -673,4 +675,146 @@ TEST_CASE("every two-stream closure is close to the reference for isotropic scat
       }
     }
   }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Rayleigh phase function (ColumnBatch::rayleigh_fraction).
+
+namespace {
+
+/// The Rayleigh phase function with depolarisation factor rho (Chandrasekhar 1960 ch. I;
+/// Hansen & Travis 1974 sec. 2, from memory): p = 3/(4(1 + 2 gm)) [(1 + 3 gm) + (1 - gm) x^2],
+/// gm = rho/(2 - rho), x = cos(Theta); normalised to (1/2) int p dx = 1.
+double rayleigh_phase(double x, double rho) {
+  const double gm = rho / (2.0 - rho);
+  return 3.0 / (4.0 * (1.0 + 2.0 * gm)) * ((1.0 + 3.0 * gm) + (1.0 - gm) * x * x);
+}
+
+/// chi_l = (1/2) int_{-1}^{1} p(x) P_l(x) dx by an 8-point half-range Gauss rule on each half
+/// (exact for this polynomial integrand up to l = 13).
+double rayleigh_moment_by_quadrature(int l, double rho) {
+  std::vector<double> x, w;
+  gauss_01(8, x, w);
+  double s = 0.0;
+  for (std::size_t i = 0; i < x.size(); ++i) {
+    for (double sx : {x[i], -x[i]}) {
+      double p0 = 1.0, p1 = sx, pl = l == 0 ? 1.0 : sx;
+      for (int k = 2; k <= l; ++k) {
+        pl = ((2.0 * k - 1.0) * sx * p1 - (k - 1.0) * p0) / k;
+        p0 = p1;
+        p1 = pl;
+      }
+      s += w[i] * rayleigh_phase(sx, rho) * pl;
+    }
+  }
+  return 0.5 * s;  // gauss_01 weights sum to 1 on (0, 1): int_{-1}^{1} = sum over both halves
+}
+
+Column reference_rayleigh(const std::vector<Layer>& layers, const std::vector<double>& f_r,
+                          double mu0, double alb, int streams, bool delta_m, double rho = 0.0279) {
+  const std::size_t nl = layers.size();
+  const auto tau = column_of(layers, &Layer::tau), om = column_of(layers, &Layer::omega),
+             g = column_of(layers, &Layer::g);
+  std::vector<double> m{mu0}, s{1.0}, ad{alb}, af{alb};
+  Column c{std::vector<double>(nl + 1), std::vector<double>(nl + 1), std::vector<double>(nl + 1),
+           mu0};
+  ReferenceOptions o;
+  o.streams = streams;
+  o.delta_m = delta_m;
+  o.depolarization = rho;
+  ColumnBatch in{1, nl, tau, om, g, m, s, ad, af};
+  in.rayleigh_fraction = f_r;
+  const Status st = solve_columns_reference(in, o, {c.dir, c.dif, c.up});
+  INFO(st.message);
+  REQUIRE(st.ok);
+  return c;
+}
+
+}  // namespace
+
+TEST_CASE("the Rayleigh moments integrate the Rayleigh phase function exactly", "[rt][reference]") {
+  // Moments of the closed-form phase function, by quadrature, against rayleigh_moment2 and the
+  // vanishing odd and higher moments. rho = 0: p = 3/4 (1 + x^2), chi_2 = 1/10 exactly
+  // (beta_2 = 1/2, Chandrasekhar 1960 ch. I).
+  CHECK(rayleigh_moment2(0.0) == Approx(0.1).epsilon(1e-15));
+  for (double rho : {0.0, 0.0279, 0.1, 0.5}) {
+    INFO("rho " << rho);
+    CHECK(rayleigh_moment_by_quadrature(0, rho) == Approx(1.0).epsilon(1e-14));
+    CHECK(rayleigh_moment_by_quadrature(2, rho) == Approx(rayleigh_moment2(rho)).epsilon(1e-13));
+    for (int l : {1, 3, 4, 5, 6, 7}) CHECK(std::abs(rayleigh_moment_by_quadrature(l, rho)) < 1e-14);
+  }
+}
+
+TEST_CASE("a zero Rayleigh fraction reproduces the Henyey-Greenstein reference bit for bit",
+          "[rt][reference]") {
+  const std::vector<Layer> col = {{0.4, 0.95, 0.7}, {2.0, 0.8, 0.2}, {1.0, 1.0, -0.3}};
+  for (bool dm : {true, false}) {
+    const Column a = reference(col, 0.6, 0.3, 0.3, 16, dm);
+    const Column b = reference_rayleigh(col, {0.0, 0.0, 0.0}, 0.6, 0.3, 16, dm);
+    for (std::size_t l = 0; l < a.up.size(); ++l) {
+      CHECK(a.up[l] == b.up[l]);
+      CHECK(a.dif[l] == b.dif[l]);
+      CHECK(a.dir[l] == b.dir[l]);
+    }
+  }
+}
+
+TEST_CASE("the reference with Rayleigh scattering equals an independent doubling solution",
+          "[rt][reference]") {
+  // Same discrete problem, different algorithm (see `doubling`), with the moments of the
+  // Rayleigh / Henyey-Greenstein mixture computed here by quadrature of the closed-form phase
+  // function: pure Rayleigh (f_R = 1) and a mixture f_R = 0.4 with mean g = 0.3 (g_a = 0.5).
+  const double rho = 0.0279;
+  struct Case {
+    double tau, omega, g, f_r, mu0;
+  };
+  for (const Case& k : {Case{1.0, 1.0, 0.0, 1.0, 0.5}, Case{3.0, 0.9, 0.0, 1.0, 0.8},
+                        Case{0.5, 0.99, 0.3, 0.4, 0.3}}) {
+    const int streams = 12;
+    std::vector<double> chi(streams);
+    const double ga = k.g / (1.0 - k.f_r + (k.f_r == 1.0 ? 1.0 : 0.0));
+    for (int l = 0; l < streams; ++l)
+      chi[l] = k.f_r * rayleigh_moment_by_quadrature(l, rho) + (1.0 - k.f_r) * std::pow(ga, l);
+    const Doubled dbl = doubling(k.tau, k.omega, 0.0, k.mu0, streams / 2, chi);
+    const Column c = reference_rayleigh({{k.tau, k.omega, k.g}}, {k.f_r}, k.mu0, 0.0, streams, false, rho);
+    INFO("tau " << k.tau << " omega " << k.omega << " f_R " << k.f_r << " R " << c.reflectance()
+                << " doubling " << dbl.r);
+    CHECK(c.reflectance() == Approx(dbl.r).margin(1e-10));
+    CHECK(c.diffuse_transmittance() == Approx(dbl.t_diffuse).margin(1e-10));
+  }
+}
+
+TEST_CASE("a conservative Rayleigh column conserves energy and differs from isotropic scattering",
+          "[rt][reference]") {
+  // omega = 1 over a black surface: R + T = 1 exactly (no absorption). Thin-layer limit: the
+  // single-scattering flux reflectance is omega tau / (2 mu0) for Rayleigh as for isotropic
+  // scattering, because the P_2 term integrates to zero over a hemisphere (int_0^1 P_2 = 0);
+  // at larger depth the two differ.
+  const std::vector<double> pure = {1.0, 1.0};
+  for (double mu0 : {0.2, 0.6, 1.0}) {
+    const Column c = reference_rayleigh({{2.0, 1.0, 0.0}, {3.0, 1.0, 0.0}}, pure, mu0, 0.0, 16, true);
+    CHECK(c.reflectance() + c.transmittance() == Approx(1.0).margin(1e-10));
+    const Column thin = reference_rayleigh({{1e-6, 1.0, 0.0}}, {1.0}, mu0, 0.0, 16, true);
+    CHECK(thin.reflectance() == Approx(1e-6 / (2 * mu0)).epsilon(1e-5));
+  }
+  const Column ray = reference_rayleigh({{1.0, 1.0, 0.0}}, {1.0}, 1.0, 0.0, 16, true);
+  const Column iso = reference({{1.0, 1.0, 0.0}}, 1.0, 0.0, 0.0, 16);
+  INFO("Rayleigh R " << ray.reflectance() << " isotropic R " << iso.reflectance());
+  CHECK(std::abs(ray.reflectance() - iso.reflectance()) > 1e-4);
+}
+
+TEST_CASE("invalid Rayleigh inputs are rejected", "[rt][reference]") {
+  std::vector<double> tau{1.0}, om{1.0}, g{0.0}, m{0.5}, s{1.0}, a{0.0}, fr{1.5};
+  std::vector<double> d(2), f(2), u(2);
+  ColumnBatch in{1, 1, tau, om, g, m, s, a, a};
+  in.rayleigh_fraction = fr;
+  Status st = solve_columns_reference(in, ReferenceOptions{}, {d, f, u});
+  CHECK_FALSE(st.ok);
+  CHECK(st.message.find("rayleigh_fraction[0]") != std::string::npos);
+  fr[0] = 0.5;
+  ReferenceOptions o;
+  o.depolarization = 0.6;
+  st = solve_columns_reference(in, o, {d, f, u});
+  CHECK_FALSE(st.ok);
+  CHECK(st.message.find("depolarization") != std::string::npos);
 }
