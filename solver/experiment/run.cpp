@@ -21,6 +21,7 @@ namespace {
 struct Problems {
   std::size_t n = 0, nl = 0;
   std::vector<double> tau, omega, g, mu0, solar, albedo_direct, albedo_diffuse;
+  std::vector<double> rayleigh_fraction;  ///< [layer * n + problem], empty in given-optics mode
 };
 
 /// Level fluxes of the problems, [level * n + problem].
@@ -34,7 +35,8 @@ Fluxes solve(const Problems& p, const Experiment& e) {
   f.dir.assign(nlev * p.n, 0.0);
   f.dif.assign(nlev * p.n, 0.0);
   f.up.assign(nlev * p.n, 0.0);
-  const rt::ColumnBatch batch{p.n, p.nl, p.tau, p.omega, p.g, p.mu0, p.solar, p.albedo_direct, p.albedo_diffuse};
+  rt::ColumnBatch batch{p.n, p.nl, p.tau, p.omega, p.g, p.mu0, p.solar, p.albedo_direct, p.albedo_diffuse};
+  batch.rayleigh_fraction = p.rayleigh_fraction;  // the reference's Rayleigh phase function
   if (e.reference_solver) {
     rt::ReferenceOptions ref;
     ref.streams = e.reference_streams;
@@ -226,6 +228,7 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
   p.tau = co.tau;
   p.omega = co.omega;
   p.g = co.g;
+  p.rayleigh_fraction = co.rayleigh_fraction;
   // Surface albedo per bin: the default, overridden inside named bands.
   std::vector<double> alb_dir(grid.size(), e.albedo_direct), alb_dif(grid.size(), e.albedo_diffuse);
   for (std::size_t b = 0; b < grid.bands().size(); ++b) {

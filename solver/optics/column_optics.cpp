@@ -1,5 +1,6 @@
 #include "optics/column_optics.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <sstream>
 #include <stdexcept>
@@ -74,6 +75,7 @@ ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::
   o.column_tau_ozone.assign(np, 0.0);
   o.column_tau_aerosol.assign(np, 0.0);
   o.column_tau_gas.assign(np, 0.0);
+  o.rayleigh_fraction.assign(o.n_layers * np, 0.0);
   // Per bin: Rayleigh, ozone and aerosol optics, the same for every k-term of the bin.
   const std::size_t nb = grid.size(), nl = o.n_layers;
   std::vector<double> tr(nb * nl), to(nb * nl), ta(nb * nl), wa(nb), ga(nb);
@@ -113,6 +115,8 @@ ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::
       o.tau[l * np + k] = r.tau;
       o.omega[l * np + k] = r.omega;
       o.g[l * np + k] = r.g;
+      const double scat = tr[b * nl + l] + ta[b * nl + l] * wa[b];
+      o.rayleigh_fraction[l * np + k] = scat > 0.0 ? std::min(1.0, tr[b * nl + l] / scat) : 0.0;
     }
   }
   return o;

@@ -50,6 +50,9 @@ struct ColumnOptics {
   std::vector<double> column_tau_ozone;     ///< dimensionless: column ozone optical depth [point]
   std::vector<double> column_tau_aerosol;   ///< dimensionless: column aerosol optical depth [point]
   std::vector<double> column_tau_gas;       ///< dimensionless: column k-term gas optical depth [point]
+  /// dimensionless: share of each layer's scattering optical depth due to Rayleigh scattering,
+  /// [layer * n_points + point] (for the Rayleigh phase function of the multi-stream reference)
+  std::vector<double> rayleigh_fraction;
 };
 
 /// Builds the optics of `profile` at every bin of `grid` (optics at each bin's centre):
