@@ -44,7 +44,7 @@ int main(int argc, char** argv) {
   const experiment::Study study = experiment::Study::load(dir / "bench.yaml");
   const std::size_t n = study.size();
   const experiment::ScenarioResult probe = experiment::run_scenario(study, 0, false);
-  const double layers = double(probe.result.n_layers), points = double(probe.result.n_bins);
+  const double layers = double(probe.result.n_layers), points = double(probe.result.n_points);
   std::set<std::string> clean;
   for (std::size_t i = 0; i < n; ++i) clean.insert(study.aerosol_free_key(i));
   std::printf("# %zu scenarios, %g layers, %g spectral points, aerosol-free companions: %zu distinct\n", n, layers,

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <mutex>
 #include <sstream>
 #include <stdexcept>
 
@@ -20,6 +21,49 @@ std::string OpticsOptions::validate() const {
   }
   return {};
 }
+
+namespace {
+
+/// The gas points of the last few distinct inputs: a sweep over aerosol, sun or surface keeps
+/// its atmosphere, so its k-term optics are interpolated once, not once per scenario. Inputs
+/// are compared exactly (no hash collisions); thread-safe.
+std::shared_ptr<const GasPoints> cached_gas_points(const spectrum::Grid& grid, const LayerState& state,
+                                                   const std::vector<GasColumn>& gases) {
+  struct Entry {
+    std::vector<double> edges;
+    LayerState state;
+    std::vector<std::shared_ptr<const KTable>> tables;  // held, so an address is never reused
+    std::vector<std::vector<double>> columns;
+    std::shared_ptr<const GasPoints> points;
+  };
+  static std::mutex mutex;
+  static std::vector<Entry> entries;  // most recent last
+  constexpr std::size_t kKeep = 8;
+  Entry key;
+  for (const spectrum::Bin& b : grid.bins()) key.edges.push_back(b.lower_nm), key.edges.push_back(b.upper_nm);
+  key.state = state;
+  for (const GasColumn& g : gases) {
+    key.tables.push_back(g.table);
+    key.columns.push_back(g.molecules);
+  }
+  const auto same = [&](const Entry& e) {
+    return e.edges == key.edges && e.state.pressure_hpa == key.state.pressure_hpa &&
+           e.state.temperature_k == key.state.temperature_k && e.state.h2o_vmr == key.state.h2o_vmr &&
+           e.tables == key.tables && e.columns == key.columns;
+  };
+  {
+    std::lock_guard<std::mutex> lock(mutex);
+    for (const Entry& e : entries)
+      if (same(e)) return e.points;
+  }
+  key.points = std::make_shared<const GasPoints>(gas_points(grid, state, gases));
+  std::lock_guard<std::mutex> lock(mutex);
+  entries.push_back(key);
+  if (entries.size() > kKeep) entries.erase(entries.begin());
+  return entries.back().points;
+}
+
+}  // namespace
 
 ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::Grid& grid,
                                  const AerosolSpec& aerosol, const OpticsOptions& options) {
@@ -62,7 +106,8 @@ ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::
     }
     gases.push_back(std::move(g));
   }
-  const GasPoints gp = gas_points(grid, state, gases);
+  const std::shared_ptr<const GasPoints> gpp = cached_gas_points(grid, state, gases);
+  const GasPoints& gp = *gpp;
 
   ColumnOptics o;
   o.n_layers = p.n_layers();

@@ -6,6 +6,9 @@
 #include <cstdlib>
 #include <fstream>
 #include <numbers>
+#include <map>
+#include <memory>
+#include <mutex>
 #include <sstream>
 #include <stdexcept>
 
@@ -279,7 +282,17 @@ double e490_scale_factor(const TabulatedSpectrum& e490) {
 
 SolarSource builtin_e490_solar(const Grid& grid, const std::string& data_dir) {
   const std::string path = data_dir + "/" + kE490RelativePath;
-  const TabulatedSpectrum e490 = read_spectrum_csv(path);
+  // Read once per process and path: sweeps build a source per scenario.
+  static std::mutex mutex;
+  static std::map<std::string, std::shared_ptr<const TabulatedSpectrum>> read;
+  std::shared_ptr<const TabulatedSpectrum> table;
+  {
+    std::lock_guard<std::mutex> lock(mutex);
+    auto& slot = read[path];
+    if (!slot) slot = std::make_shared<const TabulatedSpectrum>(read_spectrum_csv(path));
+    table = slot;
+  }
+  const TabulatedSpectrum& e490 = *table;
   const double f = e490_scale_factor(e490);
   SolarSource s = tabulated_solar(e490, grid);
   for (double& v : s.bin_irradiance) v *= f;
