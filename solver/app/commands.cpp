@@ -376,7 +376,8 @@ largest difference over all levels, and the heating-rate difference. For a sweep
 sample of scenarios (evenly spaced over the scenario index) is compared.
 
 options:
-  --streams N       reference streams, even, 4 to 64 (default 16; 32 for tighter checks)
+  --streams N       total number of reference streams (both hemispheres: N/2 directions each),
+                    even, 4 to 64 (default 16; 32 for tighter checks)
   --sample K        scenarios of a sweep to compare (default 5)
   -o, --output FILE also write the full comparison (per band and level) as HDF5
   -q, --quiet       no table
