@@ -126,6 +126,19 @@ int parse(const std::string& cmd, const std::vector<std::string>& args, RunOptio
   return -1;
 }
 
+/// Why `path` cannot be written as an output file ("" when it can): its directory must exist and
+/// be writable, and the path must not name a directory.
+std::string output_path_problem(const std::filesystem::path& path) {
+  namespace fs = std::filesystem;
+  std::error_code ec;
+  const fs::path abs = fs::absolute(path, ec);
+  if (fs::is_directory(abs, ec)) return "is a directory; give a file name";
+  const fs::path dir = abs.parent_path();
+  if (!fs::is_directory(dir, ec)) return "its directory '" + dir.string() + "' does not exist";
+  if (::access(dir.c_str(), W_OK) != 0) return "its directory '" + dir.string() + "' is not writable";
+  return {};
+}
+
 /// Loads and validates a study (every scenario); on bad input prints the message and sets `rc`.
 std::optional<experiment::Study> load_study(const std::string& file, int& rc) {
   try {
@@ -328,11 +341,11 @@ int run_command(const std::vector<std::string>& args) {
   if (!o.output.empty()) e.output.file = o.output;
   if (!o.csv.empty()) e.output.csv = o.csv;
   if (o.spectral) e.output.spectral = true;
-  {
-    const std::filesystem::path dir = std::filesystem::absolute(e.output.file).parent_path();
-    std::error_code ec;
-    if (!std::filesystem::is_directory(dir, ec)) {
-      std::cerr << "solstrata run: output directory '" << dir.string() << "' does not exist\n";
+  // Every output path is checked before the first solve: a bad one fails at once, not after the work.
+  for (const auto& [path, what] : {std::pair{e.output.file, "output file"}, std::pair{e.output.csv, "CSV file"}}) {
+    if (path.empty()) continue;
+    if (const std::string m = output_path_problem(path); !m.empty()) {
+      std::cerr << "solstrata run: " << what << " '" << path.string() << "': " << m << "\n";
       return kExitBadInput;
     }
   }

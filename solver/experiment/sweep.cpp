@@ -247,6 +247,22 @@ Study Study::parse(std::string text, const std::string& name, const fs::path& ba
       }
     }
     sw.check_no_unknown_keys();
+    // Checked product of the axis sizes: refuse at once what would overflow or exceed the ceiling.
+    {
+      std::size_t n = 1;
+      std::string shape;
+      bool over = false;
+      for (const SweepAxis& a : s.plan_.axes) {
+        shape += (shape.empty() ? "" : " x ") + std::to_string(a.size());
+        if (a.size() != 0 && n > kMaxScenarios / a.size()) over = true;
+        else n *= a.size();
+      }
+      if (over || n > kMaxScenarios) {
+        throw s.impl_->doc->error(s.plan_.parameters().front()->mark, "sweep",
+                                  "the sweep has " + shape + " scenarios, more than the " +
+                                      std::to_string(kMaxScenarios) + " one study may have; split it into several studies");
+      }
+    }
     std::set<std::string> seen;
     for (const SweepParameter* p : s.plan_.parameters()) {
       if (!seen.insert(p->path).second) throw s.impl_->doc->error(p->mark, "sweep", "parameter '" + p->path + "' is swept twice");

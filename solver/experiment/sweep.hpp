@@ -13,6 +13,11 @@
 
 namespace solstrata::experiment {
 
+/// The most scenarios one study may have (a stated ceiling: 10^8 scenarios of a 60-layer column
+/// at ~10^4 scenarios per second is about three hours on one machine). Larger sweeps are refused
+/// when the file is read, before anything is allocated.
+inline constexpr std::size_t kMaxScenarios = 100'000'000;
+
 /// One swept parameter: a key path in the experiment file and its values.
 struct SweepParameter {
   std::string path;            ///< dotted key path, e.g. "aerosol.optical_depth" or "given_optics.layers[0].optical_depth"

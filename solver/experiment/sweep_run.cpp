@@ -130,8 +130,9 @@ std::size_t run_scenarios(const Study& study, const std::vector<std::size_t>& to
     if (ready.empty() && running == 0) break;
     ScenarioResult r = std::move(ready.front());
     ready.pop_front();
+    const bool failed = failure != nullptr;  // read under the lock (the workers write it)
     lock.unlock();
-    if (!failure) {
+    if (!failed) {
       try {
         on_done(std::move(r));
         ++done;

@@ -189,3 +189,28 @@ TEST_CASE("accuracy compares the closure with the reference and writes the compa
   CHECK(run("accuracy acc.yaml --streams 7").code == 2);
   CHECK(run("accuracy").code == 2);
 }
+
+TEST_CASE("bad output paths fail before any work and leave nothing behind", "[app]") {
+  std::ofstream(workdir() / "paths.yaml") << kGood;
+  fs::create_directories(workdir() / "adir");
+  const Outcome dir = run("run paths.yaml -o adir");
+  CHECK(dir.code == 2);
+  CHECK_THAT(dir.err, Catch::Contains("is a directory"));
+  const Outcome csv = run("run paths.yaml -o ok.h5 --csv missing_dir/summary.csv");
+  CHECK(csv.code == 2);
+  CHECK_THAT(csv.err, Catch::Contains("missing_dir") && Catch::Contains("does not exist"));
+  fs::remove_all(workdir() / "adir");
+  CHECK(leftovers().empty());  // in particular no ok.h5: the HDF5 is not written before the CSV fails
+}
+
+TEST_CASE("a sweep of 10^12 scenarios is refused at once when the file is read", "[app]") {
+  std::ofstream(workdir() / "huge.yaml")
+      << kGood << "sweep:\n  grid:\n"
+      << "    - {parameter: aerosol.optical_depth, range: {from: 0.01, to: 1, count: 1000000}}\n"
+      << "    - {parameter: sun.solar_zenith_deg, range: {from: 0, to: 80, count: 1000000}}\n";
+  const Outcome o = run("check huge.yaml");
+  CHECK(o.code == 2);
+  CHECK_THAT(o.err, Catch::Contains("huge.yaml:") && Catch::Contains("1000000 x 1000000") &&
+                        Catch::Contains("100000000"));
+  CHECK(leftovers().empty());
+}
