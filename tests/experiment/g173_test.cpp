@@ -93,3 +93,17 @@ TEST_CASE("water vapour lowers the surface irradiance monotonically; zero water 
   CHECK(a.global_horizontal == b.global_horizontal);
   CHECK(a.direct_normal == b.direct_normal);
 }
+
+TEST_CASE("gas absorption in the atmosphere grows with the air mass", "[experiment]") {
+  // Longer slant paths absorb more of the beam (Beer-Lambert per k-term); no aerosol, black
+  // surface, so the column's absorptance is the gases' (and ozone's).
+  double previous = 0.0;
+  for (const char* zenith : {"0", "40", "60", "75"}) {
+    const std::string text = std::string("sun: {solar_zenith_deg: ") + zenith + "}\nsurface: {albedo: 0}\n";
+    const experiment::RunResult r = experiment::run_experiment(experiment::parse_experiment(text, "m.yaml", "."));
+    const double absorptance = r.absorbed_atmosphere / r.toa_down;
+    INFO("zenith " << zenith << ": absorbed fraction " << absorptance);
+    CHECK(absorptance > previous);
+    previous = absorptance;
+  }
+}
