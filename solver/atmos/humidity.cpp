@@ -92,17 +92,4 @@ std::vector<double> default_h2o_ppmv(const Profile& p, double total_cm) {
   return q.h2o_ppmv;
 }
 
-void scale_h2o_to(Profile& p, double target_cm) {
-  if (!std::isfinite(target_cm) || target_cm <= 0.0 || target_cm > 100.0) {
-    throw std::invalid_argument("target precipitable water " + num(target_cm) +
-                                " cm must be in (0, 100]");
-  }
-  const double now = total_h2o_cm(p);
-  if (!(now > 0.0)) {
-    throw std::invalid_argument("profile '" + p.name +
-                                "' has no water vapour to rescale (h2o_ppmv is empty or all zero)");
-  }
-  for (double& v : p.h2o_ppmv) v *= target_cm / now;
-}
-
 }  // namespace solstrata::atmos

@@ -1,4 +1,5 @@
 #include "atmos/profile.hpp"
+#include "atmos/humidity.hpp"
 
 #include <cmath>
 #include <numbers>
@@ -120,17 +121,31 @@ double total_h2o_cm(const Profile& p) {
   return s;
 }
 
-void scale_ozone_to(Profile& p, double target_du) {
-  if (!std::isfinite(target_du) || target_du <= 0.0 || target_du > 2000.0) {
-    throw std::invalid_argument("target total ozone " + num(target_du) +
-                                " DU must be in (0, 2000]");
+namespace {
+
+/// Multiplies a gas's mixing ratios so that its total column `now` becomes `target` (in `unit`,
+/// at most `max`); throws std::invalid_argument naming the value, or the profile without the gas.
+void rescale_gas(const Profile& p, std::vector<double>& ppmv, double now, double target, double max,
+                 const char* what, const char* unit, const char* key) {
+  if (!std::isfinite(target) || target <= 0.0 || target > max) {
+    throw std::invalid_argument(std::string("target ") + what + " " + num(target) + " " + unit + " must be in (0, " +
+                                num(max) + "]");
   }
-  const double now = total_ozone_du(p);
   if (!(now > 0.0)) {
-    throw std::invalid_argument("profile '" + p.name +
-                                "' has no ozone to rescale (ozone_ppmv is empty or all zero)");
+    throw std::invalid_argument("profile '" + p.name + "' has no " + key + " to rescale (" + key +
+                                "_ppmv is empty or all zero)");
   }
-  for (double& v : p.ozone_ppmv) v *= target_du / now;
+  for (double& v : ppmv) v *= target / now;
+}
+
+}  // namespace
+
+void scale_ozone_to(Profile& p, double target_du) {
+  rescale_gas(p, p.ozone_ppmv, total_ozone_du(p), target_du, 2000.0, "total ozone", "DU", "ozone");
+}
+
+void scale_h2o_to(Profile& p, double target_cm) {
+  rescale_gas(p, p.h2o_ppmv, total_h2o_cm(p), target_cm, 100.0, "precipitable water", "cm", "h2o");
 }
 
 }  // namespace solstrata::atmos
