@@ -20,12 +20,14 @@ using namespace solstrata;
 
 int main(int argc, char** argv) {
   std::size_t side = 100;  // side x side scenarios
+  bool gases = true;       // the built-in H2O and O2 tables (k-terms); --no-gases: ozone only
   for (int i = 1; i < argc; ++i) {
     if (!std::strcmp(argv[i], "--help") || !std::strcmp(argv[i], "-h")) {
-      std::printf("usage: sweep_bench [--side N]\nRuns an N x N aerosol grid (default 100 x 100 = 10,000 scenarios)\n"
+      std::printf("usage: sweep_bench [--side N] [--no-gases]\nRuns an N x N aerosol grid (default 100 x 100 = 10,000 scenarios)\n"
                   "of a 60-layer column on the default grid with 1 and 2 threads.\n");
       return 0;
     }
+    if (!std::strcmp(argv[i], "--no-gases")) gases = false;
     if (i + 1 < argc && !std::strcmp(argv[i], "--side")) side = std::strtoul(argv[++i], nullptr, 10);
   }
   const auto dir = std::filesystem::temp_directory_path() / ("solstrata_sweep_bench_" + std::to_string(::getpid()));
@@ -33,8 +35,9 @@ int main(int argc, char** argv) {
   std::vector<double> alt;
   for (int k = 60; k >= 0; --k) alt.push_back(80.0 * k * k / 3600.0);  // 61 levels, 60 layers, finer near the ground
   std::ofstream(dir / "column60.yaml") << atmos::to_yaml_text(atmos::make_us_standard_1976(alt), "60-layer U.S. Standard Atmosphere (bench)");
-  std::ofstream(dir / "bench.yaml") << "atmosphere: {profile: column60.yaml}\n"
-                                       "aerosol: {type: continental_average, optical_depth: 0.1}\n"
+  std::ofstream(dir / "bench.yaml") << (gases ? "atmosphere: {profile: column60.yaml}\n"
+                                             : "atmosphere: {profile: column60.yaml, absorbers: {h2o: none, o2: none}}\n")
+                                    << "aerosol: {type: continental_average, optical_depth: 0.1}\n"
                                        "sun: {solar_zenith_deg: 35}\nsurface: {albedo: 0.2}\n"
                                        "sweep:\n  grid:\n"
                                        "    - {parameter: aerosol.optical_depth, range: {from: 0.01, to: 2, count: "
