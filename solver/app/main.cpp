@@ -8,6 +8,7 @@
 
 #include "app/commands.hpp"
 #include "app/demo.hpp"
+#include "experiment/experiment.hpp"
 #include "version.hpp"
 
 namespace {
@@ -116,7 +117,8 @@ int main(int argc, char** argv) {
     return 0;
   }
   if (cmd == "--version") {
-    std::cout << "solstrata " << kVersion << "\n";
+    std::cout << "solstrata " << kVersion << "\n"
+              << "built-in data: " << experiment::default_data_dir().string() << "\n";
     return 0;
   }
   if (cmd == "demo") return demo_command(rest);

@@ -134,7 +134,8 @@ class ProfileCache {
 std::shared_ptr<const optics::KTable> cached_ktable(const std::filesystem::path& path);
 
 /// The directory of built-in data: the environment variable SOLSTRATA_DATA_DIR when set and not
-/// empty, else the source tree's solver/data (compile definition SOLSTRATA_SOURCE_DATA_DIR),
+/// empty, else <prefix>/share/solstrata/data beside an installed <prefix>/bin executable, else the
+/// source tree's solver/data (compile definition SOLSTRATA_SOURCE_DATA_DIR),
 /// else "data" (relative to the working directory).
 std::filesystem::path default_data_dir();
 

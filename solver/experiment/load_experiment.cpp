@@ -604,6 +604,13 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
 
 fs::path default_data_dir() {
   if (const char* env = std::getenv("SOLSTRATA_DATA_DIR"); env && *env) return fs::path(env);
+  // Installed: <prefix>/bin/solstrata finds <prefix>/share/solstrata/data (cmake --install).
+  std::error_code ec;
+  const fs::path exe = fs::read_symlink("/proc/self/exe", ec);
+  if (!ec) {
+    const fs::path installed = exe.parent_path().parent_path() / "share" / "solstrata" / "data";
+    if (fs::is_regular_file(installed / "solar" / "astm_e490_00a.csv", ec)) return installed;
+  }
 #ifdef SOLSTRATA_SOURCE_DATA_DIR
   return fs::path(SOLSTRATA_SOURCE_DATA_DIR);
 #else

@@ -214,3 +214,25 @@ TEST_CASE("a sweep of 10^12 scenarios is refused at once when the file is read",
                         Catch::Contains("100000000"));
   CHECK(leftovers().empty());
 }
+
+TEST_CASE("cmake --install gives a command that finds its installed data and runs the demo", "[app]") {
+  const fs::path prefix = workdir() / "prefix";
+  const std::string install = "cmake --install '" + std::string(SOLSTRATA_BUILD_DIR) + "' --prefix '" + prefix.string() +
+                              "' > '" + (workdir() / "install.log").string() + "' 2>&1";
+  REQUIRE(std::system(install.c_str()) == 0);
+  const fs::path exe = prefix / "bin" / "solstrata";
+  REQUIRE(fs::exists(exe));
+  CHECK(fs::exists(prefix / "share" / "solstrata" / "data" / "gases" / "o2_hitran2012.ktab"));
+  CHECK(fs::exists(prefix / "share" / "doc" / "solstrata" / "experiment-keys.md"));
+  const std::string out = (workdir() / "installed.txt").string();
+  const std::string cmd = "cd '" + workdir().string() + "' && env -u SOLSTRATA_DATA_DIR '" + exe.string() +
+                          "' --version > '" + out + "' && env -u SOLSTRATA_DATA_DIR '" + exe.string() + "' run '" +
+                          (prefix / "share" / "solstrata" / "config" / "demo.yaml").string() + "' -q -o installed.h5";
+  CHECK(std::system(cmd.c_str()) == 0);
+  CHECK_THAT(slurp(out), Catch::Contains((prefix / "share" / "solstrata" / "data").string()));
+  CHECK(fs::exists(workdir() / "installed.h5"));
+  fs::remove_all(prefix);
+  fs::remove(workdir() / "installed.h5");
+  fs::remove(workdir() / "install.log");
+  fs::remove(workdir() / "installed.txt");
+}
