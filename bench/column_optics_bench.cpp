@@ -30,7 +30,7 @@ int main(int argc, char** argv) {
   }
   const atmos::Profile p = atmos::make_us_standard_1976();
   const spectrum::Grid g = spectrum::make_grid(spectrum::default_segments(), spectrum::default_bands());
-  const optics::AerosolSpec a = optics::from_preset(optics::AerosolType::continental_average, 0.2);
+  const optics::AerosolSpec a = optics::from_preset(optics::AerosolType::continental_moderate, 0.2);
   const double n = double(p.n_layers()) * double(g.size());
   std::printf("# %zu layers x %zu points, best of %d, single thread\n", p.n_layers(), g.size(), reps);
   double checksum = 0.0;

@@ -37,7 +37,7 @@ int main(int argc, char** argv) {
   std::ofstream(dir / "column60.yaml") << atmos::to_yaml_text(atmos::make_us_standard_1976(alt), "60-layer U.S. Standard Atmosphere (bench)");
   std::ofstream(dir / "bench.yaml") << (gases ? "atmosphere: {profile: column60.yaml}\n"
                                              : "atmosphere: {profile: column60.yaml, absorbers: {h2o: none, o2: none}}\n")
-                                    << "aerosol: {type: continental_average, optical_depth: 0.1}\n"
+                                    << "aerosol: {type: continental_moderate, optical_depth: 0.1}\n"
                                        "sun: {solar_zenith_deg: 35}\nsurface: {albedo: 0.2}\n"
                                        "sweep:\n  grid:\n"
                                        "    - {parameter: aerosol.optical_depth, range: {from: 0.01, to: 2, count: "

@@ -31,6 +31,12 @@ void print_check_summary(std::ostream& os, const experiment::Experiment& e) {
                                        (e.aerosol_type.empty() ? "" : " (" + e.aerosol_type + ")")
                                  : std::string("none"))
        << "\n";
+    if (e.aerosol.tau_ref > 0) {
+      os << "               single-scattering albedo " << fmt("%.4g", e.aerosol.omega) << ", asymmetry "
+         << fmt("%.4g", e.aerosol.g) << ", Angstrom exponent " << fmt("%.3g", e.aerosol.alpha());
+      if (const auto t = optics::parse_aerosol_type(e.aerosol_type)) os << "\n               source: " << optics::preset(*t).source;
+      os << "\n";
+    }
     os << "  gases:       ";
     for (std::size_t i = 0; i < e.absorbers.size(); ++i) {
       const experiment::Absorber& a = e.absorbers[i];

@@ -28,8 +28,8 @@ const std::vector<std::string> kClosureNames = [] {
 }();
 
 const std::vector<std::string> kAerosolTypes = {
-    "continental_clean", "continental_average", "continental_polluted", "urban",
-    "desert",            "maritime_clean",      "maritime_polluted",    "smoke"};
+    "continental_background", "continental_moderate", "continental_industrial", "urban_haze",
+    "mineral_dust",            "marine_background",      "marine_coastal",    "biomass_smoke"};
 
 const std::vector<std::string> kShapes = {"exponential", "boundary_layer", "per_layer"};
 
@@ -269,6 +269,19 @@ void read_aerosol(Section& s, Experiment& e) {
   const Document doc = s.document();
   optics::AerosolSpec& a = e.aerosol;
   if (s.has("type")) {
+    // Names of earlier versions, renamed to descriptive names of our own: a clear pointer.
+    static const std::map<std::string, std::string> kRenamed = {
+        {"continental_clean", "continental_background"}, {"continental_average", "continental_moderate"},
+        {"continental_polluted", "continental_industrial"}, {"urban", "urban_haze"},
+        {"desert", "mineral_dust"}, {"maritime_clean", "marine_background"},
+        {"maritime_polluted", "marine_coastal"}, {"smoke", "biomass_smoke"}};
+    {
+      const Located<std::string> raw = s.required_string("type");
+      if (const auto it = kRenamed.find(raw.value); it != kRenamed.end()) {
+        throw doc.error(raw, "the aerosol type '" + raw.value + "' is now called '" + it->second +
+                                 "' (same single-scattering albedo, asymmetry and Angstrom exponent)");
+      }
+    }
     const auto t = s.choice("type", kAerosolTypes);
     const optics::AerosolPreset pre = optics::preset(*optics::parse_aerosol_type(t.value));
     a.omega = pre.omega;

@@ -39,6 +39,16 @@ void write_global_attributes(Hdf5Writer& w, const experiment::Experiment& e, con
   w.set_attribute("", "atmosphere_profile", e.given_optics_mode ? std::string("given_optics") : e.profile_origin);
   w.set_attribute("", "solar_spectrum", r.solar_description);
   w.set_attribute("", "solar_spectrum_approximate", r.solar_approximate ? 1 : 0);
+  if (!e.given_optics_mode && e.aerosol.tau_ref > 0.0) {
+    // The aerosol as resolved (a preset's values, or the user's), with the preset's source.
+    w.set_attribute("", "aerosol_type", e.aerosol_type.empty() ? std::string("given in the experiment") : e.aerosol_type);
+    w.set_attribute("", "aerosol_single_scattering_albedo", e.aerosol.omega);
+    w.set_attribute("", "aerosol_asymmetry_parameter", e.aerosol.g);
+    w.set_attribute("", "aerosol_angstrom_exponent", e.aerosol.alpha());
+    if (const auto t = optics::parse_aerosol_type(e.aerosol_type)) {
+      w.set_attribute("", "aerosol_preset_source", std::string(optics::preset(*t).source));
+    }
+  }
   if (!e.given_optics_mode) {
     std::string gases;
     for (const std::string& g : r.gas_tables) gases += (gases.empty() ? "" : "\n") + g;

@@ -16,9 +16,9 @@ std::string num(double x) {
 }
 
 constexpr std::array<AerosolType, 8> kAllTypes = {
-    AerosolType::continental_clean, AerosolType::continental_average,
-    AerosolType::continental_polluted, AerosolType::urban, AerosolType::desert,
-    AerosolType::maritime_clean, AerosolType::maritime_polluted, AerosolType::smoke};
+    AerosolType::continental_background, AerosolType::continental_moderate,
+    AerosolType::continental_industrial, AerosolType::urban_haze, AerosolType::mineral_dust,
+    AerosolType::marine_background, AerosolType::marine_coastal, AerosolType::biomass_smoke};
 
 // Linear interpolation in wavelength, constant beyond the ends.
 double interpolate(const std::vector<double>& x, const std::vector<double>& y, double at) {
@@ -33,14 +33,14 @@ double interpolate(const std::vector<double>& x, const std::vector<double>& y, d
 
 std::string_view to_string(AerosolType t) {
   switch (t) {
-    case AerosolType::continental_clean: return "continental_clean";
-    case AerosolType::continental_average: return "continental_average";
-    case AerosolType::continental_polluted: return "continental_polluted";
-    case AerosolType::urban: return "urban";
-    case AerosolType::desert: return "desert";
-    case AerosolType::maritime_clean: return "maritime_clean";
-    case AerosolType::maritime_polluted: return "maritime_polluted";
-    case AerosolType::smoke: return "smoke";
+    case AerosolType::continental_background: return "continental_background";
+    case AerosolType::continental_moderate: return "continental_moderate";
+    case AerosolType::continental_industrial: return "continental_industrial";
+    case AerosolType::urban_haze: return "urban_haze";
+    case AerosolType::mineral_dust: return "mineral_dust";
+    case AerosolType::marine_background: return "marine_background";
+    case AerosolType::marine_coastal: return "marine_coastal";
+    case AerosolType::biomass_smoke: return "biomass_smoke";
   }
   return "unknown";
 }
@@ -59,22 +59,22 @@ AerosolPreset preset(AerosolType t) {
   // J. Atmos. Sci. 59, 590, savanna biomass burning (omega, g at 440 nm; alpha 440-870 nm), from
   // memory.
   switch (t) {
-    case AerosolType::continental_clean:
+    case AerosolType::continental_background:
       return {0.97, 0.71, 1.42, "OPAC (Hess et al. 1998), RH 80 %, from memory"};
-    case AerosolType::continental_average:
+    case AerosolType::continental_moderate:
       return {0.925, 0.70, 1.42, "OPAC (Hess et al. 1998), RH 80 %, from memory"};
-    case AerosolType::continental_polluted:
+    case AerosolType::continental_industrial:
       return {0.8925, 0.6977, 1.45,
               "OPAC (Hess et al. 1998), RH 80 %: omega, g published; alpha from memory"};
-    case AerosolType::urban:
+    case AerosolType::urban_haze:
       return {0.82, 0.69, 1.43, "OPAC (Hess et al. 1998), RH 80 %, from memory"};
-    case AerosolType::desert:
+    case AerosolType::mineral_dust:
       return {0.89, 0.73, 0.17, "OPAC (Hess et al. 1998), RH 80 %, from memory"};
-    case AerosolType::maritime_clean:
+    case AerosolType::marine_background:
       return {0.998, 0.77, 0.08, "OPAC (Hess et al. 1998), RH 80 %, from memory"};
-    case AerosolType::maritime_polluted:
+    case AerosolType::marine_coastal:
       return {0.975, 0.76, 0.35, "OPAC (Hess et al. 1998), RH 80 %, from memory"};
-    case AerosolType::smoke:
+    case AerosolType::biomass_smoke:
       return {0.88, 0.64, 1.8, "Dubovik et al. (2002), savanna biomass burning, from memory"};
   }
   return {0.9, 0.7, 1.3, "unknown"};

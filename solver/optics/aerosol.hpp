@@ -12,16 +12,16 @@ namespace solstrata::optics {
 
 /// Typed aerosol presets (single-scattering albedo, asymmetry parameter, Ångström exponent).
 enum class AerosolType {
-  continental_clean,
-  continental_average,
-  continental_polluted,
-  urban,
-  desert,
-  maritime_clean,
-  maritime_polluted,
-  smoke,
+  continental_background,
+  continental_moderate,
+  continental_industrial,
+  urban_haze,
+  mineral_dust,
+  marine_background,
+  marine_coastal,
+  biomass_smoke,
 };
-/// Stable lower-case name ("continental_clean", ...).
+/// Stable lower-case name ("continental_background", ...).
 std::string_view to_string(AerosolType t);
 /// Inverse of to_string; std::nullopt for an unknown name.
 std::optional<AerosolType> parse_aerosol_type(std::string_view name);

@@ -56,7 +56,7 @@ std::vector<std::string> leftovers() {
 const char* kGood = R"(atmosphere:
   ozone_column_du: 300
 aerosol:
-  type: continental_clean
+  type: continental_background
   optical_depth: 0.1
 sun:
   solar_zenith_deg: 30
@@ -132,7 +132,7 @@ TEST_CASE("bad experiment files are refused with a pointed message, exit code 2 
       {"g_one", sun + "aerosol:\n  optical_depth: 0.1\n  asymmetry_parameter: 1.0\n", "< 1", 5},
       {"tau_negative", sun + "aerosol:\n  optical_depth: -0.1\n", "0 <= ", 4},
       {"tau_missing", sun + "aerosol:\n  angstrom_exponent: 1.0\n", "optical_depth", 0},
-      {"aerosol_type", sun + "aerosol:\n  type: continental_avg\n  optical_depth: 0.1\n", "did you mean 'continental_average'", 4},
+      {"aerosol_type", sun + "aerosol:\n  type: continental_mod\n  optical_depth: 0.1\n", "did you mean 'continental_moderate'", 4},
       {"albedo_high", sun + "surface:\n  albedo: 1.5\n", "<= 1", 4},
       {"closure", sun + "solver:\n  closure: delta-eddington\n", "did you mean 'delta_eddington'", 4},
       {"profile_missing", sun + "atmosphere:\n  profile: nowhere.yaml\n", "does not exist", 4},

@@ -44,7 +44,7 @@ Outcome sh(const std::string& args, const std::string& env = "") {
 }
 
 const char* kSweep = R"(atmosphere: {ozone_column_du: 300}
-aerosol: {type: continental_average, optical_depth: 0.2}
+aerosol: {type: continental_moderate, optical_depth: 0.2}
 sun: {solar_zenith_deg: 30}
 surface: {albedo: 0.2}
 spectrum:

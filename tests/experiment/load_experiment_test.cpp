@@ -211,3 +211,10 @@ TEST_CASE("atmosphere.absorbers picks built-in, none or a table file per gas, an
   CHECK_THAT(error_of("atmosphere:\n  absorbers: {co2: builtin}" + sun).what(), Catch::Contains("no built-in CO2"));
   CHECK_THAT(error_of("atmosphere:\n  absorbers: {ch4: none}" + sun).what(), Catch::Contains("ch4"));
 }
+
+TEST_CASE("aerosol type names of earlier versions are an error that names the new one", "[experiment]") {
+  const std::string text = "aerosol:\n  type: maritime_clean\n  optical_depth: 0.1\nsun: {solar_zenith_deg: 30}\n";
+  const experiment::InputError e = error_of(text);
+  CHECK(e.line() == 2);
+  CHECK_THAT(e.what(), Catch::Contains("now called 'marine_background'"));
+}

@@ -16,7 +16,7 @@ namespace {
 const std::string kBase = R"(atmosphere:
   ozone_column_du: 300
 aerosol:
-  type: continental_clean
+  type: continental_background
   optical_depth: 0.1
 sun:
   solar_zenith_deg: 30

@@ -43,17 +43,17 @@ TEST_CASE("aerosol albedo and asymmetry may be tabulated against wavelength", "[
 TEST_CASE("aerosol presets carry the OPAC and Dubovik values", "[optics]") {
   // OPAC (Hess, Koepke & Schult 1998), continental polluted, RH 80 %, 550 nm: omega 0.8925,
   // g 0.6977 [published]; the others from shared/checkvalues.md section 10 [memory].
-  CHECK(preset(AerosolType::continental_polluted).omega == 0.8925);
-  CHECK(preset(AerosolType::continental_polluted).g == 0.6977);
-  CHECK(preset(AerosolType::maritime_clean).omega == 0.998);
-  CHECK(preset(AerosolType::urban).omega == 0.82);
-  CHECK(preset(AerosolType::smoke).g == 0.64);
+  CHECK(preset(AerosolType::continental_industrial).omega == 0.8925);
+  CHECK(preset(AerosolType::continental_industrial).g == 0.6977);
+  CHECK(preset(AerosolType::marine_background).omega == 0.998);
+  CHECK(preset(AerosolType::urban_haze).omega == 0.82);
+  CHECK(preset(AerosolType::biomass_smoke).g == 0.64);
   // Fine-mode aerosols have larger Ångström exponents than coarse dust and sea salt.
-  CHECK(preset(AerosolType::urban).angstrom > 1.0);
-  CHECK(preset(AerosolType::desert).angstrom < 0.5);
-  CHECK(preset(AerosolType::maritime_clean).angstrom < 0.5);
-  for (const char* n : {"continental_clean", "continental_average", "continental_polluted", "urban",
-                        "desert", "maritime_clean", "maritime_polluted", "smoke"}) {
+  CHECK(preset(AerosolType::urban_haze).angstrom > 1.0);
+  CHECK(preset(AerosolType::mineral_dust).angstrom < 0.5);
+  CHECK(preset(AerosolType::marine_background).angstrom < 0.5);
+  for (const char* n : {"continental_background", "continental_moderate", "continental_industrial", "urban_haze",
+                        "mineral_dust", "marine_background", "marine_coastal", "biomass_smoke"}) {
     const auto t = parse_aerosol_type(n);
     REQUIRE(t);
     CHECK(to_string(*t) == n);

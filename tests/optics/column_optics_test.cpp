@@ -54,7 +54,7 @@ double sum(const std::vector<double>& v) {
 TEST_CASE("column optics are laid out layer by layer and sum to the component columns", "[optics]") {
   const atmos::Profile p = atmos::make_us_standard_1976();
   const spectrum::Grid g = spectrum::make_grid({{300, 700, 50}});
-  optics::AerosolSpec a = optics::from_preset(optics::AerosolType::continental_average, 0.2);
+  optics::AerosolSpec a = optics::from_preset(optics::AerosolType::continental_moderate, 0.2);
   a.reference_nm = 525;  // a bin centre
   optics::OpticsOptions opt;
   opt.ozone_temperature_dependence = false;  // the table's reference-temperature cross sections
@@ -188,7 +188,7 @@ TEST_CASE("aerosol dims the direct beam and brightens the diffuse", "[optics]") 
   const spectrum::Grid g = spectrum::make_grid(spectrum::default_segments());
   const spectrum::SolarSource sun = spectrum::builtin_solar(g);
   const SurfaceFluxes clean = solve(optics::build_column_optics(p, g, {}, {}), sun.bin_irradiance, 1.0, 0.0);
-  const optics::AerosolSpec a = optics::from_preset(optics::AerosolType::continental_average, 0.2);
+  const optics::AerosolSpec a = optics::from_preset(optics::AerosolType::continental_moderate, 0.2);
   const optics::ColumnOptics o = optics::build_column_optics(p, g, a, {});
   const SurfaceFluxes hazy = solve(o, sun.bin_irradiance, 1.0, 0.0);
   CHECK(sum(hazy.direct) < sum(clean.direct));
