@@ -395,6 +395,19 @@ void read_spectrum(Section& s, Experiment& e, const fs::path& base) {
     }
     if (const std::string m = spectrum::validate(e.segments); !m.empty()) throw s.error("bins", m);
   }
+  if (s.has("bins") && !s.has("bands")) {
+    // Custom bins without bands: the default bands (with UV-C below 280 nm), clipped to the grid;
+    // bands wholly outside it are left out.
+    const double lo = e.segments.front().from_nm, hi = e.segments.back().to_nm;
+    std::vector<spectrum::Band> all = spectrum::default_bands();
+    all.insert(all.begin(), spectrum::Band{"UV-C", 100.0, all.front().lower_nm});
+    e.bands.clear();
+    for (spectrum::Band b : all) {
+      b.lower_nm = std::max(b.lower_nm, lo);
+      b.upper_nm = std::min(b.upper_nm, hi);
+      if (b.upper_nm > b.lower_nm) e.bands.push_back(b);
+    }
+  }
   if (s.has("bands")) {
     e.bands.clear();
     for (Section& b : s.sequence("bands")) {

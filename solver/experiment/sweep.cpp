@@ -1,6 +1,8 @@
 #include "experiment/sweep.hpp"
 
 #include <cmath>
+#include <cstdio>
+#include <cstdlib>
 #include <fstream>
 #include <set>
 #include <sstream>
@@ -40,8 +42,13 @@ SweepParameter read_parameter(Section& item) {
     const auto n = static_cast<std::size_t>(count.value);
     for (std::size_t k = 0; k < n; ++k) {
       const double t = n == 1 ? 0.0 : double(k) / double(n - 1);
-      p.values.push_back(log ? std::exp(std::log(from.value) + t * (std::log(to.value) - std::log(from.value)))
-                             : from.value + t * (to.value - from.value));
+      const double v = log ? std::exp(std::log(from.value) + t * (std::log(to.value) - std::log(from.value)))
+                           : from.value + t * (to.value - from.value);
+      // Rounded to 15 significant digits, so that decimal steps come out as written (20, not
+      // 20.000000000000004; 0.05, not 0.05000000000000001) and selecting by value works.
+      char buf[32];
+      std::snprintf(buf, sizeof buf, "%.15g", v);
+      p.values.push_back(std::strtod(buf, nullptr));
     }
     if (n > 1) p.values.back() = to.value;  // exact end point
   }
@@ -189,7 +196,13 @@ Study Study::parse(std::string text, const std::string& name, const fs::path& ba
       std::ifstream csv(path);
       if (!csv) throw s.impl_->doc->error(f, "scenario file '" + path.string() + "' cannot be read");
       std::string line;
-      std::getline(csv, line);
+      int row = 0;
+      // Comment lines ('#') and blank lines may stand before the header too.
+      while (std::getline(csv, line)) {
+        ++row;
+        if (!line.empty() && line.back() == '\r') line.pop_back();
+        if (!line.empty() && line[0] != '#') break;
+      }
       SweepAxis axis;
       {
         std::stringstream hs(line);
@@ -200,7 +213,6 @@ Study Study::parse(std::string text, const std::string& name, const fs::path& ba
           axis.parameters.push_back({col, {}, f.mark});
         }
       }
-      int row = 1;
       while (std::getline(csv, line)) {
         ++row;
         if (line.empty() || line[0] == '#') continue;

@@ -28,7 +28,7 @@ constexpr hsize_t kScaleChunk = 1024;
 bool reserved_attribute(const std::string& name) {
   return name == "DIMENSION_LIST" || name == "REFERENCE_LIST" || name == "CLASS" ||
          name == "NAME" || name == "_Netcdf4Dimid" || name == "_Netcdf4Coordinates" ||
-         name == "_NCProperties" || name == "_FillValue";
+         name == "_NCProperties";
 }
 
 bool valid_name(const std::string& name, bool allow_leading_underscore) {
@@ -482,6 +482,14 @@ void Hdf5Writer::set_attribute(const std::string& variable, const std::string& n
     impl_->with_object(variable, [&](H5::H5Object& o) {
       Impl::write_numbers(o, name, H5::PredType::NATIVE_INT, std::span<const int>(&value, 1));
     });
+  });
+}
+
+void Hdf5Writer::set_attribute(const std::string& variable, const std::string& name, std::span<const int> values) {
+  impl_->check_attribute_name(variable, name);
+  if (values.empty()) impl_->fail(variable, "attribute '" + name + "' has no values");
+  impl_->guarded(variable, "write an attribute", [&] {
+    impl_->with_object(variable, [&](H5::H5Object& o) { Impl::write_numbers(o, name, H5::PredType::NATIVE_INT, values); });
   });
 }
 

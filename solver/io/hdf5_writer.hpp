@@ -92,8 +92,9 @@ class Hdf5Writer {
   void set_attribute(const std::string& variable, const std::string& name, double value);
   void set_attribute(const std::string& variable, const std::string& name,
                      std::span<const double> values);
-  /// An integer attribute (netCDF int).
+  /// An integer attribute (netCDF int), one value or several.
   void set_attribute(const std::string& variable, const std::string& name, int value);
+  void set_attribute(const std::string& variable, const std::string& name, std::span<const int> values);
 
   /// Closes the file and moves it to its final path. The writer is unusable afterwards.
   void commit();

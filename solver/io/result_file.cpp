@@ -234,30 +234,41 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     const std::string c = coords + (s.f->on_levels ? " level_pressure" : "");
     if (!c.empty()) w.set_attribute(s.f->name, "coordinates", c);
     set_field_attributes(w, *s.f);
+    // Scenarios still to run hold the fill value: say so, so that readers mask them.
+    w.set_attribute(s.f->name, "_FillValue", kFill);
+    w.set_attribute(s.f->name, "missing_value", kFill);
   }
   if (with_effect) {
     const char* sign = " (net downward flux with aerosol minus without; negative = the aerosol cools, positive = it warms)";
     w.write("aerosol_effect_toa", {"scenario"}, toa, {"W m-2", std::string("instantaneous aerosol radiative effect at the top of the atmosphere") + sign, ""});
     w.write("aerosol_effect_surface", {"scenario"}, sfc, {"W m-2", std::string("instantaneous aerosol radiative effect at the surface") + sign, ""});
     w.write("aerosol_effect_atmosphere", {"scenario"}, atm, {"W m-2", "instantaneous aerosol radiative effect in the atmosphere (TOA effect minus surface effect; positive = aerosol heats the air)", ""});
-    for (const char* v : {"aerosol_effect_toa", "aerosol_effect_surface", "aerosol_effect_atmosphere"})
+    for (const char* v : {"aerosol_effect_toa", "aerosol_effect_surface", "aerosol_effect_atmosphere"}) {
       if (!coords.empty()) w.set_attribute(v, "coordinates", coords);
+      w.set_attribute(v, "_FillValue", kFill);
+      w.set_attribute(v, "missing_value", kFill);
+    }
   }
   w.write("scenario_complete", {"scenario"}, std::span<const int>(complete),
           {"1", "1 when the scenario's results are in this file, 0 while it is still to be run", ""});
+  {
+    const int flags[] = {0, 1};
+    w.set_attribute("scenario_complete", "flag_values", std::span<const int>(flags));
+    w.set_attribute("scenario_complete", "flag_meanings", "still_to_run complete");
+  }
   write_global_attributes(w, study.base(), templ.result);
   w.set_attribute("", "sweep_scenarios", static_cast<int>(n));
   w.set_attribute("", "sweep_complete", partial && contents.offsets.size() < n ? 0 : 1);
   w.set_attribute("", "sweep_kind", study.plan().from_list ? "list" : "grid");
-  std::vector<double> shape;
+  std::vector<int> shape;
   std::string axes;
   for (const experiment::SweepAxis& a : study.plan().axes) {
-    shape.push_back(static_cast<double>(a.size()));
+    shape.push_back(static_cast<int>(a.size()));
     std::string names;
     for (const auto& p : a.parameters) names += (names.empty() ? "" : "+") + p.path;
     axes += (axes.empty() ? "" : " x ") + names;
   }
-  w.set_attribute("", "sweep_shape", shape);
+  w.set_attribute("", "sweep_shape", std::span<const int>(shape));
   w.set_attribute("", "sweep_axes", axes);
   w.set_attribute("", "sweep_layout",
                   "scenario index is row-major over sweep_axes (last axis fastest): reshape any (scenario, ...) "

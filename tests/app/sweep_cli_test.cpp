@@ -119,6 +119,18 @@ TEST_CASE("a sweep killed with SIGKILL resumes to the same file as a clean run",
     CHECK(sum == 6);
     const auto g = solstrata::io::read_global_attributes(dir() / "resumed.h5");
     CHECK(std::get<std::vector<double>>(g.at("sweep_complete")) == std::vector<double>{0});
+    // Readers mask the scenarios still to run: the fill value is declared (netCDF's default
+    // double fill, NC_FILL_DOUBLE) on every per-scenario variable, and the flag is described.
+    const auto effect = solstrata::io::read_variable(dir() / "resumed.h5", "aerosol_effect_toa");
+    const auto ghi = solstrata::io::read_variable(dir() / "resumed.h5", "global_horizontal_irradiance");
+    for (const auto* v : {&effect, &ghi}) {
+      CHECK(std::get<std::vector<double>>(v->attributes.at("_FillValue")) == std::vector<double>{9.9692099683868690e+36});
+      CHECK(std::get<std::vector<double>>(v->attributes.at("missing_value")) == std::vector<double>{9.9692099683868690e+36});
+    }
+    CHECK(std::count(ghi.values.begin(), ghi.values.end(), 9.9692099683868690e+36) == long(done.values.size()) - 6);
+    CHECK(std::get<std::vector<double>>(done.attributes.at("flag_values")) == std::vector<double>{0, 1});
+    CHECK(solstrata::io::text_attribute(done.attributes, "flag_meanings") == "still_to_run complete");
+    CHECK(std::get<std::vector<double>>(g.at("sweep_shape")).size() >= 1);
   }
   // A torn last record (the kill could land mid-write): cut a few bytes off the checkpoint.
   fs::resize_file(dir() / "resumed.h5.partial", fs::file_size(dir() / "resumed.h5.partial") - 5);

@@ -218,3 +218,19 @@ TEST_CASE("aerosol type names of earlier versions are an error that names the ne
   CHECK(e.line() == 2);
   CHECK_THAT(e.what(), Catch::Contains("now called 'marine_background'"));
 }
+
+TEST_CASE("custom bins without bands get the default bands clipped to the grid", "[experiment]") {
+  const experiment::Experiment e = experiment::parse_experiment(
+      "spectrum:\n  bins: [{from_nm: 350, to_nm: 800, step_nm: 10}]\nsun: {solar_zenith_deg: 30}\n", "b.yaml", ".");
+  REQUIRE(e.bands.size() == 3);  // UV-A 350-400, PAR 400-700, NIR 700-800; no UV-C or UV-B
+  CHECK(e.bands[0].name == "UV-A");
+  CHECK(e.bands[0].lower_nm == 350.0);
+  CHECK(e.bands[2].name == "NIR");
+  CHECK(e.bands[2].upper_nm == 800.0);
+  // A grid starting below 280 nm keeps a UV-C band from its first edge.
+  const experiment::Experiment u = experiment::parse_experiment(
+      "spectrum:\n  bins: [{from_nm: 260, to_nm: 320, step_nm: 5}]\nsun: {solar_zenith_deg: 30}\n", "b.yaml", ".");
+  REQUIRE(u.bands.size() == 3);
+  CHECK(u.bands[0].name == "UV-C");
+  CHECK(u.bands[0].lower_nm == 260.0);
+}

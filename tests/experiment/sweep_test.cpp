@@ -70,7 +70,8 @@ TEST_CASE("zipped lists are one axis and log ranges are geometric", "[experiment
 TEST_CASE("a scenario list file gives one scenario per row", "[experiment][sweep]") {
   const auto dir = std::filesystem::temp_directory_path() / ("solstrata_sweep_" + std::to_string(::getpid()));
   std::filesystem::create_directories(dir);
-  std::ofstream(dir / "list.csv") << "aerosol.optical_depth,surface.albedo\n0.1,0.2\n0.5,0.3\n# comment\n0.9,0.05\n";
+  // A comment line before the header is skipped as well (docs/experiment-keys.md).
+  std::ofstream(dir / "list.csv") << "# invented list\naerosol.optical_depth,surface.albedo\n0.1,0.2\n0.5,0.3\n# comment\n0.9,0.05\n";
   const Study s = Study::parse(kBase + "sweep:\n  scenario_file: list.csv\n", "sweep.yaml", dir);
   REQUIRE(s.size() == 3);
   CHECK(s.plan().from_list);
@@ -180,4 +181,17 @@ TEST_CASE("bad sweeps point at the sweep entry", "[experiment][sweep]") {
   fails("sweep:\n  grid:\n    - {parameter: aerosol.optical_depth, values: [0.1]}\n    - {parameter: aerosol.optical_depth, values: [0.2]}\n", "swept twice", 0);
   fails("sweep:\n  grid:\n    - {parameter: aerosol, values: [0.1]}\n", "section", 0);
   fails("sweep:\n  gird:\n    - {parameter: aerosol.optical_depth, values: [0.1]}\n", "did you mean 'grid'", 0);
+}
+
+TEST_CASE("range sweeps give the decimal values a user would write", "[experiment][sweep]") {
+  const Study s = study(R"(sweep:
+  grid:
+    - {parameter: sun.solar_zenith_deg, range: {from: 0, to: 60, count: 4}}
+    - {parameter: aerosol.optical_depth, range: {from: 0.05, to: 0.5, count: 10}}
+)");
+  const auto params = s.plan().parameters();
+  // Exact equality on purpose: these decimals must be the nearest doubles to 20, 40, 0.05, 0.1 ...
+  CHECK(params[0]->values == std::vector<double>{0, 20, 40, 60});
+  const std::vector<double> want{0.05, 0.1, 0.15, 0.2, 0.25, 0.3, 0.35, 0.4, 0.45, 0.5};
+  CHECK(params[1]->values == want);
 }
