@@ -79,6 +79,9 @@ struct Experiment {
   std::vector<Absorber> absorbers; ///< H2O, O2, CO2 in this order (atmosphere mode only)
 
   double solar_zenith_deg = 0.0;   ///< degrees: solar zenith angle, [0, 90)
+  /// true: the direct beam crosses each layer along its slant path in a spherical-shell
+  /// atmosphere (pseudo-spherical; sun/air_mass.hpp); false: plane-parallel 1/mu0
+  bool spherical_beam = true;
   sun::DistanceSpec distance;      ///< Earth-Sun distance factor (day of year or given)
   double irradiance_scale = 1.0;   ///< dimensionless: extra factor on the TOA irradiance, > 0
 

@@ -355,6 +355,7 @@ void read_sun(Section& s, Experiment& e) {
   e.distance.day_of_year = day.value;
   e.distance.factor = factor.value;
   e.irradiance_scale = s.optional_number("irradiance_scale", 1.0, Range::open_closed(0.0, 10.0)).value;
+  e.spherical_beam = s.optional_choice("beam_geometry", "spherical", {"spherical", "plane_parallel"}).value == "spherical";
   s.check_no_unknown_keys();
 }
 

@@ -13,6 +13,7 @@
 #include "rt/discrete_ordinates.hpp"
 #include "rt/two_stream.hpp"
 #include "spectrum/solar.hpp"
+#include "sun/air_mass.hpp"
 
 namespace solstrata::experiment {
 namespace {
@@ -22,6 +23,7 @@ struct Problems {
   std::size_t n = 0, nl = 0;
   std::vector<double> tau, omega, g, mu0, solar, albedo_direct, albedo_diffuse;
   std::vector<double> rayleigh_fraction;  ///< [layer * n + problem], empty in given-optics mode
+  std::vector<double> beam_path;          ///< [layer * n + problem] slant factors, empty = plane-parallel
 };
 
 /// Level fluxes of the problems, [level * n + problem].
@@ -37,6 +39,7 @@ Fluxes solve(const Problems& p, const Experiment& e) {
   f.up.assign(nlev * p.n, 0.0);
   rt::ColumnBatch batch{p.n, p.nl, p.tau, p.omega, p.g, p.mu0, p.solar, p.albedo_direct, p.albedo_diffuse};
   batch.rayleigh_fraction = p.rayleigh_fraction;  // the reference's Rayleigh phase function
+  batch.beam_path = p.beam_path;                  // pseudo-spherical direct beam
   if (e.reference_solver) {
     rt::ReferenceOptions ref;
     ref.streams = e.reference_streams;
@@ -229,6 +232,13 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
   p.omega = co.omega;
   p.g = co.g;
   p.rayleigh_fraction = co.rayleigh_fraction;
+  if (e.spherical_beam) {
+    // Pseudo-spherical direct beam: each layer's geometric slant factor in a spherical shell
+    // (sun::layer_slant_factors), the same for every spectral point.
+    const std::vector<double> m = sun::layer_slant_factors(e.profile.altitude_km, e.solar_zenith_deg);
+    p.beam_path.resize(p.nl * p.n);
+    for (std::size_t l = 0; l < p.nl; ++l) std::fill_n(p.beam_path.begin() + static_cast<long>(l * p.n), p.n, m[l]);
+  }
   // Surface albedo per bin: the default, overridden inside named bands.
   std::vector<double> alb_dir(grid.size(), e.albedo_direct), alb_dif(grid.size(), e.albedo_diffuse);
   for (std::size_t b = 0; b < grid.bands().size(); ++b) {
