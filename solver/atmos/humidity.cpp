@@ -4,14 +4,12 @@
 #include <sstream>
 #include <stdexcept>
 
+#include "atmos/number_text.hpp"
+
 namespace solstrata::atmos {
 namespace {
 
-std::string num(double x) {
-  std::ostringstream s;
-  s << x;
-  return s.str();
-}
+std::string num(double x) { return number_text(x); }
 
 void check_temperature(double t_k) {
   if (!std::isfinite(t_k) || t_k <= 100.0 || t_k >= 400.0) {

@@ -6,14 +6,12 @@
 #include <sstream>
 #include <stdexcept>
 
+#include "atmos/number_text.hpp"
+
 namespace solstrata::atmos {
 namespace {
 
-std::string num(double x) {
-  std::ostringstream s;
-  s << x;
-  return s.str();
-}
+std::string num(double x) { return number_text(x); }
 
 std::string check_gas(const std::vector<double>& v, std::size_t n, const char* field) {
   if (v.empty()) return {};

@@ -6,14 +6,13 @@
 #include <sstream>
 #include <stdexcept>
 
+#include "atmos/number_text.hpp"
+
 namespace solstrata::optics {
 namespace {
 
-std::string num(double x) {
-  std::ostringstream s;
-  s << x;
-  return s.str();
-}
+using atmos::number_text;
+std::string num(double x) { return number_text(x); }
 
 constexpr std::array<AerosolType, 8> kAllTypes = {
     AerosolType::continental_background, AerosolType::continental_moderate,
