@@ -64,7 +64,14 @@ void write_accuracy_file(const std::filesystem::path& path, const experiment::Ex
   w.set_attribute("", "history", iso_timestamp_utc() + " created by solstrata accuracy");
   w.set_attribute("", "experiment", e.text);
   w.set_attribute("", "closure", first.closure);
-  w.set_attribute("", "reference", "discrete ordinates (Stamnes et al. 1988 formulation), Henyey-Greenstein phase function, delta-M, " +
+  w.set_attribute("", "solar_spectrum", first.solar_description);
+  if (!e.given_optics_mode) {
+    std::string gases;
+    for (const std::string& g : first.gas_tables) gases += (gases.empty() ? "" : "\n") + g;
+    w.set_attribute("", "gas_tables", gases.empty() ? std::string("none (no gas absorption but ozone)") : gases);
+    if (first.h2o_broadband) w.set_attribute("", "water_vapour_note", experiment::kH2oBroadbandNote);
+  }
+  w.set_attribute("", "reference", "discrete ordinates (Stamnes et al. 1988 formulation), Rayleigh and Henyey-Greenstein phase functions, delta-M, " +
                                        std::to_string(streams) + " streams");
   w.commit();
 }
