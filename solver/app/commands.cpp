@@ -221,7 +221,7 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
   try {
     // Scenario 0 fixes the record layout; a fresh run records it first.
     const experiment::ScenarioResult templ = experiment::run_scenario(study, 0, spectral);
-    const bool with_effect = study.has_aerosol();
+    const bool with_effect = study.computes_aerosol_effect();
     const std::size_t record_values = io::scenario_record(templ, with_effect).size();
     std::optional<io::CheckpointWriter> writer;
     if (resuming) {
@@ -279,9 +279,10 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
     if (!e.output.csv.empty()) io::write_sweep_summary_csv(out, e.output.csv, study);
     if (!o.quiet) {
       const double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-      std::cout << "solstrata run: " << o.experiment << ": " << n << " scenarios";
+      std::cout << "solstrata run: " << o.experiment << ": " << n << (study.is_time_series() ? " cases" : " scenarios");
       if (resuming) std::cout << " (" << have.offsets.size() << " from the checkpoint)";
       std::cout << " in " << secs << " s on " << opt.threads << " thread(s)\n";
+      if (study.is_time_series()) print_time_series_summary(std::cout, out, study);
       if (with_effect) std::cout << "aerosol radiative effects: aerosol_effect_toa/surface/atmosphere (W m-2, negative = cooling)\n";
       std::cout << "caution: " << experiment::kSolarCaution << "\n";
       std::cout << "wrote " << out.string();
@@ -349,7 +350,7 @@ int run_command(const std::vector<std::string>& args) {
       return kExitBadInput;
     }
   }
-  if (!study->plan().axes.empty()) return run_sweep(*study, e, o);
+  if (!study->plan().axes.empty() || study->is_time_series()) return run_sweep(*study, e, o);
   // A single run is short and leaves nothing to resume: signals act as usual again.
   std::signal(SIGINT, SIG_DFL);
   std::signal(SIGTERM, SIG_DFL);

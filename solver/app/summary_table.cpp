@@ -1,10 +1,13 @@
 #include "app/summary_table.hpp"
 
+#include <algorithm>
 #include <cstdio>
 #include <ostream>
 #include <string>
 
+#include "io/hdf5_reader.hpp"
 #include "spectrum/grid.hpp"
+#include "sun/position.hpp"
 
 namespace solstrata::app {
 namespace {
@@ -51,7 +54,23 @@ void print_check_summary(std::ostream& os, const experiment::Experiment& e) {
     for (const auto& b : g.bands()) os << " " << b.name << fmt(" (%g", b.lower_nm) << fmt("-%g)", b.upper_nm);
     os << "\n";
   }
-  os << "  sun:         solar zenith " << fmt("%g deg", e.solar_zenith_deg) << "\n";
+  if (e.site.given) {
+    os << "  site:        " << fmt("%.4f N, ", e.site.latitude_deg) << fmt("%.4f E", e.site.longitude_deg)
+       << (e.site.elevation_given ? fmt(", %g m", e.site.elevation_m) : std::string()) << "\n";
+  }
+  if (e.series.given) {
+    os << "  times:       " << e.series.times_unix.size() << " steps, " << e.series.times_text.front() << " to "
+       << e.series.times_text.back() << (e.series.daily_totals ? ", with daily totals" : "") << "\n";
+  } else if (e.has_sun_position) {
+    os << "  sun:         " << (e.sun_up ? "apparent solar zenith " : "below the horizon, zenith ") << fmt("%.3f deg", e.solar_zenith_deg)
+       << fmt(", azimuth %.3f deg", e.solar_azimuth_deg) << "\n";
+  } else {
+    os << "  sun:         solar zenith " << fmt("%g deg", e.solar_zenith_deg) << "\n";
+  }
+  if (e.plane.given) {
+    os << "  plane:       tilt " << fmt("%g deg", e.plane.tilt_deg) << fmt(", facing azimuth %g deg, ", e.plane.azimuth_deg)
+       << sun::to_string(e.plane.sky) << " sky diffuse\n";
+  }
   os << "  closure:     " << rt::to_string(e.closure) << "\n";
   os << "  output:      " << e.output.file.string() << (e.output.spectral ? " (with spectral fluxes)" : "") << "\n";
 }
@@ -98,6 +117,44 @@ void print_run_summary(std::ostream& os, const experiment::Experiment& e, const 
   }
   os << "caution: " << experiment::kSolarCaution << "\n";
   if (r.has_spectral_products) os << "caution: " << experiment::kUvCaution << "\n";
+}
+
+}  // namespace solstrata::app
+
+namespace solstrata::app {
+
+void print_time_series_summary(std::ostream& os, const std::filesystem::path& file, const experiment::Study& study) {
+  const std::vector<std::string> present = io::list_datasets(file);
+  const auto has = [&](const char* v) { return std::find(present.begin(), present.end(), v) != present.end(); };
+  const experiment::TimePlan& tp = study.plan().time;
+  const experiment::Experiment& e = study.base();
+  os << "time series: " << tp.n_steps << " steps";
+  if (tp.n_nodes()) os << " and " << tp.n_nodes() << " daily-total quadrature points";
+  os << "\n";
+  if (!has("daily_global_horizontal")) return;
+  const bool par = has("daily_par_energy"), plane = has("daily_plane_global");
+  const auto col = [&](const char* v) { return io::read_variable(file, v).values; };
+  const std::vector<double> toa = col("daily_toa_horizontal"), ghi = col("daily_global_horizontal"),
+                            dir = col("daily_direct_horizontal"), dif = col("daily_diffuse_horizontal"),
+                            hours = col("daylight_length");
+  const std::vector<double> pe = par ? col("daily_par_energy") : std::vector<double>(),
+                            pp = par ? col("daily_par_photon") : std::vector<double>(),
+                            poa = plane ? col("daily_plane_global") : std::vector<double>();
+  os << "daily totals, MJ m-2 (PAR photons mol m-2), local days at UTC" << (e.series.utc_offset_minutes < 0 ? "" : "+")
+     << fmt("%.4g h:", e.series.utc_offset_minutes / 60.0) << "\n";
+  os << "  day         daylight h    TOA  global  direct diffuse";
+  if (par) os << "   PAR  PAR mol";
+  if (plane) os << "  plane";
+  os << "\n";
+  for (std::size_t d = 0; d < toa.size(); ++d) {
+    const std::string day = sun::format_iso8601_utc({tp.day_start[d] + 60.0 * e.series.utc_offset_minutes}).substr(0, 10);
+    os << "  " << day << fmt("  %9.2f", hours[d]) << fmt(" %6.2f", toa[d]) << fmt("  %6.2f", ghi[d]) << fmt("  %6.2f", dir[d])
+       << fmt("  %6.2f", dif[d]);
+    if (par) os << fmt(" %5.2f", pe[d]) << fmt("  %7.2f", pp[d]);
+    if (plane) os << fmt(" %6.2f", poa[d]);
+    os << "\n";
+  }
+  if (plane) os << "caution: " << sun::kPlaneCaution << "\n";
 }
 
 }  // namespace solstrata::app

@@ -80,13 +80,13 @@ ScenarioResult solve_one(const Study& study, std::size_t i, bool spectral, Clean
 
 ScenarioResult run_scenario(const Study& study, std::size_t index, bool spectral) {
   CleanCache cache(study, spectral);
-  return solve_one(study, index, spectral, study.has_aerosol() ? &cache : nullptr);
+  return solve_one(study, index, spectral, study.computes_aerosol_effect() ? &cache : nullptr);
 }
 
 std::size_t run_scenarios(const Study& study, const std::vector<std::size_t>& todo, const SweepOptions& options,
                           const std::function<void(ScenarioResult&&)>& on_done) {
   CleanCache cache(study, options.spectral);
-  CleanCache* clean = study.has_aerosol() ? &cache : nullptr;
+  CleanCache* clean = study.computes_aerosol_effect() ? &cache : nullptr;
   std::atomic<std::size_t> next{0};
   std::mutex m;
   std::condition_variable cv;
