@@ -446,6 +446,16 @@ bool Study::has_aerosol() const {
 }
 
 void Study::validate_all() const {
+  if (plan_.time_series) {
+    // Only the per-step inputs can make a step invalid (a time is always a valid sun): each step
+    // with inputs once; the daily-total nodes reuse the steps' inputs.
+    if (base_.series.input_paths.empty()) {
+      (void)scenario(0);
+      return;
+    }
+    for (std::size_t i = 0; i < plan_.time.n_steps; ++i) (void)scenario(i);
+    return;
+  }
   for (std::size_t i = 0; i < size(); ++i) (void)scenario(i);
 }
 
