@@ -315,6 +315,10 @@ int check_command(const std::vector<std::string>& args) {
     for (const io::Field& f : io::result_fields(probe)) values += f.per_scenario ? f.values.size() * study.size() : f.values.size();
     print_check_summary(std::cout, study.base());
     std::cout << "  scenarios:   " << study.size();
+    if (study.is_time_series()) {
+      std::cout << " (" << study.plan().time.n_steps << " steps + " << study.plan().time.n_nodes()
+                << " daily-total quadrature points)";
+    }
     if (!study.plan().axes.empty()) {
       std::cout << " (" << (study.plan().from_list ? "list" : "grid");
       for (std::size_t a = 0; a < study.plan().axes.size(); ++a) std::cout << (a ? " x " : " ") << study.plan().axes[a].size();

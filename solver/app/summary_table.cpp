@@ -8,6 +8,7 @@
 #include "io/hdf5_reader.hpp"
 #include "spectrum/grid.hpp"
 #include "sun/position.hpp"
+#include "sun/tilted_plane.hpp"
 
 namespace solstrata::app {
 namespace {
@@ -78,7 +79,13 @@ void print_check_summary(std::ostream& os, const experiment::Experiment& e) {
 void print_run_summary(std::ostream& os, const experiment::Experiment& e, const experiment::RunResult& r) {
   os << "solstrata run: " << e.source.string();
   if (!e.title.empty()) os << " - " << e.title;
-  os << "\n" << fmt("solar zenith %.2f deg", r.solar_zenith_deg) << fmt(" (mu0 %.4f)", r.mu0)
+  os << "\n";
+  if (r.has_sun_position) {
+    os << sun::format_iso8601_utc({r.time_unix_s}) << fmt(" at %.4f N", e.site.latitude_deg)
+       << fmt(", %.4f E: ", e.site.longitude_deg) << fmt("solar azimuth %.2f deg, ", r.solar_azimuth_deg);
+    if (!r.sun_up) os << "the sun is below the horizon (all fluxes 0); ";
+  }
+  os << fmt("solar zenith %.2f deg", r.solar_zenith_deg) << fmt(" (mu0 %.4f)", r.mu0)
      << fmt(", Earth-Sun factor %.4f", r.earth_sun_factor) << ", closure " << r.closure << "\n\n";
   char line[200];
   std::snprintf(line, sizeof line, "%-12s %15s %9s %9s %9s %9s %8s %9s\n", "band", "range nm", "TOA down",
@@ -100,6 +107,12 @@ void print_run_summary(std::ostream& os, const experiment::Experiment& e, const 
     os << "         PAR " << fmt("%.1f W m-2", r.par_w_m2) << fmt(" = %.0f umol m-2 s-1", r.par_umol_m2_s)
        << ", UV index " << fmt("%.1f", r.uv_index) << (r.solar_approximate ? " (indicative)" : "") << "\n";
   }
+  if (r.has_plane) {
+    os << "tilted plane (tilt " << fmt("%g", e.plane.tilt_deg) << fmt(", facing %g deg, ", e.plane.azimuth_deg)
+       << sun::to_string(e.plane.sky) << " sky): " << fmt("%.1f W m-2", r.plane_global) << " = beam "
+       << fmt("%.1f", r.plane_beam) << " + sky diffuse " << fmt("%.1f", r.plane_sky_diffuse) << " + ground "
+       << fmt("%.1f", r.plane_ground) << fmt(", angle of incidence %.1f deg", r.angle_of_incidence_deg) << "\n";
+  }
   os << "planetary albedo " << fmt("%.4f", r.planetary_albedo) << ", absorbed: atmosphere "
      << fmt("%.1f", r.absorbed_atmosphere) << ", surface " << fmt("%.1f W m-2", r.absorbed_surface) << "\n";
   if (!e.given_optics_mode) {
@@ -117,6 +130,7 @@ void print_run_summary(std::ostream& os, const experiment::Experiment& e, const 
   }
   os << "caution: " << experiment::kSolarCaution << "\n";
   if (r.has_spectral_products) os << "caution: " << experiment::kUvCaution << "\n";
+  if (r.has_plane) os << "caution: " << sun::kPlaneCaution << "\n";
 }
 
 }  // namespace solstrata::app

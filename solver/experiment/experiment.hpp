@@ -136,8 +136,8 @@ struct Experiment {
   sun::DistanceSpec distance;      ///< Earth-Sun distance factor (day of year or given)
   double irradiance_scale = 1.0;   ///< dimensionless: extra factor on the TOA irradiance, > 0
 
-  double albedo_direct = 0.0;      ///< dimensionless: surface albedo for the direct beam, [0, 1]
-  double albedo_diffuse = 0.0;     ///< dimensionless: surface albedo for diffuse light, [0, 1]
+  double albedo_direct = 0.2;      ///< dimensionless: surface albedo for the direct beam, [0, 1] (0.2 without a surface section, as documented)
+  double albedo_diffuse = 0.2;     ///< dimensionless: surface albedo for diffuse light, [0, 1]
   /// dimensionless: albedo for the bins of named reporting bands, overriding the above (both
   /// direct and diffuse)
   std::map<std::string, double> albedo_by_band;
