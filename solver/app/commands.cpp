@@ -341,6 +341,12 @@ int run_command(const std::vector<std::string>& args) {
   if (!o.output.empty()) e.output.file = o.output;
   if (!o.csv.empty()) e.output.csv = o.csv;
   if (o.spectral) e.output.spectral = true;
+  if (e.output.spectral && e.given_optics_mode) {
+    // Given optics are solved per band: there are no wavelength bins to write.
+    std::cerr << "solstrata run: note: " << (o.spectral ? "--spectral" : "output.spectral")
+              << " has no effect with given_optics (the bands are solved as given; there are no wavelength bins); "
+                 "the file holds the band fluxes\n";
+  }
   // Every output path is checked before the first solve: a bad one fails at once, not after the work.
   for (const auto& [path, what] : {std::pair{e.output.file, "output file"}, std::pair{e.output.csv, "CSV file"}}) {
     if (path.empty()) continue;
