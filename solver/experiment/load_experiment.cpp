@@ -440,6 +440,9 @@ void read_spectrum(Section& s, Experiment& e, const fs::path& base) {
     spectrum_range range;
     try {
       range = table_range(e.solar_file, e.solar_column);
+    } catch (const spectrum::SpectrumColumnError& ex) {
+      // At the column value, or at solar_spectrum when no column is given.
+      throw sol->error("column", std::string(ex.what()) + (e.solar_column.empty() ? " with the 'column' key" : ""));
     } catch (const std::exception& ex) {
       throw doc.error(file, ex.what());
     }

@@ -205,3 +205,61 @@ sweep:
   const auto complete = solstrata::io::read_variable(dir() / "long.h5", "scenario_complete");
   CHECK(std::all_of(complete.values.begin(), complete.values.end(), [](double v) { return v == 1; }));
 }
+
+TEST_CASE("a sweep file writes only the chosen variables, with the coordinates, and its CSV carries the products",
+          "[app][sweep]") {
+  // A small sweep over keys of several units (DU, degree, 1), products and one layer variable.
+  std::ofstream(dir() / "chosen.yaml") << R"(atmosphere: {ozone_column_du: 300}
+aerosol: {type: continental_moderate, optical_depth: 0.2}
+sun: {solar_zenith_deg: 30}
+spectrum:
+  bins: [{from_nm: 290, to_nm: 400, step_nm: 10}, {from_nm: 400, to_nm: 2000, step_nm: 100}]
+  bands: [{name: uv, from_nm: 290, to_nm: 400}, {name: rest, from_nm: 400, to_nm: 2000}]
+output:
+  variables: [products, heating_rate]
+  csv: chosen.csv
+sweep:
+  grid:
+    - {parameter: atmosphere.ozone_column_du, values: [250, 350]}
+    - {parameter: sun.solar_zenith_deg, values: [20, 60]}
+)";
+  const Outcome o = sh("run chosen.yaml -o chosen.h5 -j 1");
+  INFO(o.err);
+  REQUIRE(o.code == 0);
+  const auto names = solstrata::io::list_datasets(dir() / "chosen.h5");
+  const auto has = [&](const char* n) { return std::find(names.begin(), names.end(), n) != names.end(); };
+  for (const char* n : {"global_horizontal_irradiance", "uv_index", "par_photon", "aerosol_effect_toa", "heating_rate",
+                        "level", "layer", "layer_bounds", "band", "band_lower", "scenario_complete",
+                        "atmosphere_ozone_column_du"}) {
+    INFO(n);
+    CHECK(has(n));
+  }
+  for (const char* n : {"flux_up", "band_flux_up", "absorbed", "solar_zenith_angle", "spectral_flux_up"}) {
+    INFO(n);
+    CHECK_FALSE(has(n));
+  }
+  // Every units string of the sweep file parses with udunits2 (Debian udunits-bin).
+  if (std::system("command -v udunits2 > /dev/null 2>&1") == 0) {
+    for (const std::string& n : names) {
+      const auto v = solstrata::io::read_variable(dir() / "chosen.h5", n);
+      if (v.attributes.count("units") == 0) continue;
+      const std::string u = solstrata::io::text_attribute(v.attributes, "units");
+      INFO(n << ": " << u);
+      CHECK(std::system(("udunits2 -H '" + u + "' -W '' < /dev/null > /dev/null 2>&1").c_str()) == 0);
+    }
+  } else if (std::getenv("CI") != nullptr) {
+    FAIL("udunits2 not found in CI (scripts/setup installs udunits-bin)");
+  }
+  std::ifstream csv(dir() / "chosen.csv");
+  std::string header, row;
+  std::getline(csv, header);
+  std::getline(csv, row);
+  for (const char* c : {"direct_normal_irradiance_W_m-2", "par_energy_W_m-2", "par_photon_umol_m-2_s-1", "uv_index_1",
+                        "quality", "caution"}) {
+    INFO(header);
+    CHECK(header.find(c) != std::string::npos);
+  }
+  // Built-in water vapour: the broadband representation is flagged (kH2oBroadbandNote).
+  CHECK(row.find(",h2o_broadband,") != std::string::npos);
+  CHECK(row.find("not medical advice") != std::string::npos);
+}
