@@ -263,3 +263,50 @@ sweep:
   CHECK(row.find(",h2o_broadband,") != std::string::npos);
   CHECK(row.find("not medical advice") != std::string::npos);
 }
+
+namespace {
+/// The rates (scenarios per second) of the progress lines on stderr ("\r3/8 scenarios (37.5%), 2.1/s, ...").
+std::vector<double> progress_rates(const std::string& err) {
+  std::vector<double> rates;
+  for (std::size_t at = err.find("scenarios ("); at != std::string::npos; at = err.find("scenarios (", at + 1)) {
+    const std::size_t comma = err.find("), ", at);
+    if (comma == std::string::npos) break;
+    rates.push_back(std::stod(err.substr(comma + 3)));
+  }
+  return rates;
+}
+}  // namespace
+
+TEST_CASE("the first progress rate counts the time of the first scenario", "[app][sweep]") {
+  // Before, the clock started after scenario 0 was solved, so the first tick showed one scenario
+  // over almost no time (a rate thousands of times too high). Now the first rate is of the same
+  // order as the final mean rate (both scenarios per second of the same run, one thread).
+  std::ofstream(dir() / "progress.yaml") << kSweep;
+  const Outcome o = sh("run progress.yaml -o progress.h5 -j 1", "SOLSTRATA_PROGRESS=1");
+  REQUIRE(o.code == 0);
+  const std::vector<double> rates = progress_rates(o.err);
+  INFO(o.err);
+  REQUIRE(rates.size() >= 2);
+  CHECK(rates.front() > 0.0);
+  CHECK(rates.front() < 20.0 * rates.back());
+}
+
+TEST_CASE("accuracy runs its cases on the thread pool: the same file with one thread or two, and progress",
+          "[app][sweep]") {
+  std::ofstream(dir() / "acc.yaml") << R"(sun: {solar_zenith_deg: 30}
+spectrum:
+  bins: [{from_nm: 290, to_nm: 400, step_nm: 10}, {from_nm: 400, to_nm: 2000, step_nm: 100}]
+  bands: [{name: uv, from_nm: 290, to_nm: 400}, {name: rest, from_nm: 400, to_nm: 2000}]
+sweep:
+  grid:
+    - {parameter: sun.solar_zenith_deg, values: [10, 40, 70]}
+)";
+  const Outcome one = sh("accuracy acc.yaml --sample 3 --streams 8 -j 1 -o acc1.h5", "SOLSTRATA_PROGRESS=1");
+  const Outcome two = sh("accuracy acc.yaml --sample 3 --streams 8 -j 2 -o acc2.h5");
+  INFO(one.err << two.err);
+  REQUIRE(one.code == 0);
+  REQUIRE(two.code == 0);
+  same_content(dir() / "acc1.h5", dir() / "acc2.h5");
+  CHECK(one.err.find("3/3 scenarios (100.0%)") != std::string::npos);
+  CHECK(progress_rates(one.err).size() >= 1);
+}
