@@ -9,6 +9,7 @@
 #include "app/summary_table.hpp"
 #include "experiment/experiment.hpp"
 #include "experiment/input_error.hpp"
+#include "experiment/output_variables.hpp"
 #include "experiment/run.hpp"
 #include "experiment/sweep.hpp"
 #include "experiment/sweep_run.hpp"
@@ -319,7 +320,10 @@ int check_command(const std::vector<std::string>& args) {
   try {
     const experiment::RunResult probe = experiment::run_scenario(study, 0, study.base().output.spectral).result;
     std::size_t values = 0;
-    for (const io::Field& f : io::result_fields(probe)) values += f.per_scenario ? f.values.size() * study.size() : f.values.size();
+    for (const io::Field& f : io::result_fields(probe)) {
+      if (!experiment::output_selected(study.base().output.variables, f.name)) continue;
+      values += f.per_scenario ? f.values.size() * study.size() : f.values.size();
+    }
     print_check_summary(std::cout, study.base());
     std::cout << "  scenarios:   " << study.size();
     if (!study.plan().axes.empty()) {
