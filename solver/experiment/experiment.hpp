@@ -95,6 +95,9 @@ struct OutputConfig {
   std::filesystem::path file;  ///< the HDF5 file to write
   bool spectral = false;       ///< also write per-bin level fluxes
   std::filesystem::path csv;   ///< optional flat CSV summary (empty = none)
+  /// output.variables: variable names and groups to write (experiment/output_variables.hpp);
+  /// empty = everything. Coordinates and the band table are always written.
+  std::vector<std::string> variables;
 };
 
 /// Which top-of-atmosphere solar spectrum a run uses.

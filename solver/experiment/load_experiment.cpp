@@ -13,7 +13,9 @@
 
 #include "atmos/humidity.hpp"
 #include "atmos/standard_atmosphere.hpp"
+#include "experiment/closest_name.hpp"
 #include "experiment/experiment.hpp"
+#include "experiment/output_variables.hpp"
 #include "experiment/yaml_reader.hpp"
 #include "spectrum/solar.hpp"
 #include "sun/position.hpp"
@@ -689,6 +691,9 @@ void read_spectrum(Section& s, Experiment& e, const fs::path& base) {
     spectrum_range range;
     try {
       range = table_range(e.solar_file, e.solar_column);
+    } catch (const spectrum::SpectrumColumnError& ex) {
+      // At the column value, or at solar_spectrum when no column is given.
+      throw sol->error("column", std::string(ex.what()) + (e.solar_column.empty() ? " with the 'column' key" : ""));
     } catch (const std::exception& ex) {
       throw doc.error(file, ex.what());
     }
@@ -714,6 +719,39 @@ std::vector<GivenLayer> read_given_layers(Section& s) {
     layers.push_back(g);
   }
   return layers;
+}
+
+/// output.variables: a list of variable names and groups (experiment/output_variables.hpp).
+/// Spectral variables need the per-bin output: they turn it on unless `spectral: false` is given.
+void read_output_variables(Section& o, OutputConfig& out, const Located<bool>* spectral) {
+  const Document doc = o.document();
+  const std::vector<Located<std::string>> names = o.string_list("variables");
+  if (names.empty()) throw o.error("variables", "give at least one variable or group name, or leave the key out to write everything");
+  for (const Located<std::string>& n : names) {
+    if (!is_output_name(n.value)) {
+      std::string groups, variables;
+      std::vector<std::string> all;
+      for (std::string_view g : kOutputGroups) {
+        groups += (groups.empty() ? "" : ", ") + std::string(g);
+        all.emplace_back(g);
+      }
+      for (const OutputVariable& v : kOutputVariables) {
+        variables += (variables.empty() ? "" : ", ") + std::string(v.name);
+        all.emplace_back(v.name);
+      }
+      const std::string near = closest_name(n.value, all);
+      throw doc.error(n, "unknown output variable or group '" + n.value + "'" +
+                             (near.empty() ? std::string() : " (did you mean '" + near + "'?)") +
+                             "; allowed groups: " + groups + "; allowed variables: " + variables);
+    }
+    if (output_group(n.value) == "spectral" || n.value == "spectral") {
+      if (spectral && !spectral->value) {
+        throw doc.error(n, "'" + n.value + "' needs the per-bin output, but output.spectral is false; remove one of them");
+      }
+      out.spectral = true;
+    }
+    out.variables.push_back(n.value);
+  }
 }
 
 void read_given_optics(Section& s, Experiment& e) {
@@ -893,8 +931,11 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
     e.output.file = stem.string() + ".h5";
     if (auto o = root.optional_subsection("output")) {
       e.output.file = o->optional_string("file", e.output.file.string()).value;
-      e.output.spectral = o->optional_bool("spectral", false).value;
+      const bool spectral_given = o->has("spectral");
+      const Located<bool> spectral = o->optional_bool("spectral", false);
+      e.output.spectral = spectral.value;
       e.output.csv = o->optional_string("csv", "").value;
+      if (o->has("variables")) read_output_variables(*o, e.output, spectral_given ? &spectral : nullptr);
       o->check_no_unknown_keys();
     }
   }

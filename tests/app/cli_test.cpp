@@ -156,6 +156,10 @@ TEST_CASE("bad experiment files are refused with a pointed message, exit code 2 
       {"top_is_list", "- sun\n- surface\n", "mapping", 0},
       {"shape", sun + "aerosol:\n  optical_depth: 0.1\n  vertical:\n    shape: gaussian\n", "exponential", 6},
       {"layer_weights", sun + "aerosol:\n  optical_depth: 0.1\n  vertical:\n    shape: per_layer\n    layer_weights: [1, 2]\n", "one weight per layer", 7},
+      {"output_variable", sun + "output:\n  variables: [broadband, flux_upp]\n", "did you mean 'flux_up'", 4},
+      {"output_variable_list", sun + "output:\n  variables: [nonsense]\n", "allowed groups: broadband, bands, layers, spectral, products, sun", 4},
+      {"output_variables_empty", sun + "output:\n  variables: []\n", "at least one", 4},
+      {"output_spectral_off", sun + "output:\n  spectral: false\n  variables: [spectral_flux_up]\n", "output.spectral is false", 5},
   };
   REQUIRE(cases.size() >= 25);
   for (const Bad& b : cases) {
@@ -175,6 +179,40 @@ TEST_CASE("bad experiment files are refused with a pointed message, exit code 2 
   CHECK(o.code == 2);
   CHECK(o.err.find("missing.yaml") != std::string::npos);
   CHECK(leftovers().empty());
+}
+
+TEST_CASE("a solar spectrum file with several columns and none chosen is an input error at the column key", "[app]") {
+  // Two irradiance columns and no `column`: which one is meant cannot be guessed.
+  std::ofstream(workdir() / "spectrum.csv") << "wavelength_nm,first,second\n100,1,2\n10000,1,2\n";
+  const std::string yaml = "sun:\n  solar_zenith_deg: 30\nspectrum:\n  solar_spectrum:\n    file: spectrum.csv\n";
+  std::ofstream(workdir() / "two_columns.yaml") << yaml;
+  const Outcome o = run("run two_columns.yaml -o out.h5");
+  INFO(o.err);
+  CHECK(o.code == 2);
+  CHECK(o.err.find("two_columns.yaml:4:") != std::string::npos);
+  CHECK(o.err.find("spectrum.solar_spectrum.column") != std::string::npos);
+  CHECK(o.err.find("spectrum.csv") != std::string::npos);
+  CHECK(o.err.find("first, second") != std::string::npos);
+  CHECK(leftovers().empty());
+  CHECK(run("check two_columns.yaml").code == 2);
+  // Naming the column runs.
+  std::ofstream(workdir() / "one_column.yaml") << yaml << "    column: second\n";
+  const Outcome ok = run("run one_column.yaml -o picked.h5 --quiet");
+  INFO(ok.err);
+  CHECK(ok.code == 0);
+  fs::remove(workdir() / "picked.h5");
+}
+
+TEST_CASE("the option --spectral with given optics says on stderr that it has no effect", "[app]") {
+  std::ofstream(workdir() / "given.yaml") << "sun:\n  solar_zenith_deg: 30\ngiven_optics:\n  solar_irradiance_w_m2: 1000\n"
+                                             "  layers:\n    - {optical_depth: 0.5, single_scattering_albedo: 0.9}\n";
+  const Outcome with = run("run given.yaml -o given.h5 --spectral --quiet");
+  CHECK(with.code == 0);
+  CHECK(with.err.find("--spectral has no effect with given_optics") != std::string::npos);
+  const Outcome without = run("run given.yaml -o given.h5 --quiet");
+  CHECK(without.code == 0);
+  CHECK(without.err.find("no effect") == std::string::npos);
+  fs::remove(workdir() / "given.h5");
 }
 
 TEST_CASE("accuracy compares the closure with the reference and writes the comparison", "[app]") {
