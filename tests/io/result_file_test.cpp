@@ -110,5 +110,6 @@ TEST_CASE("output.variables writes the chosen variables and groups, and always t
   // Every variable a file can hold belongs to a group, or is always written.
   std::size_t selectable = 0;
   for (const io::Field& f : io::result_fields(r)) selectable += experiment::output_group(f.name).empty() ? 0 : 1;
-  CHECK(selectable + 3 == std::size(experiment::kOutputVariables));  // + the 3 sweep-only aerosol effects
+  // + the 3 sweep-only aerosol effects and the 8 variables of runs with a site, a time and a plane
+  CHECK(selectable + 3 + 8 == std::size(experiment::kOutputVariables));
 }
