@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <sstream>
 #include <stdexcept>
 
@@ -365,6 +366,31 @@ std::string describe(const char* name, std::size_t index, double value, const ch
   return os.str();
 }
 
+/// Whether every input of a correctly sized batch is in range (the rules of validate()).
+bool all_in_range(const ColumnBatch& in) {
+  constexpr double kInf = std::numeric_limits<double>::infinity();
+  bool ok = true;
+  const auto within = [&](std::span<const double> v, double lo, double hi, bool lo_open, bool hi_open) {
+    const double* __restrict x = v.data();
+    bool good = true;
+    for (std::size_t i = 0; i < v.size(); ++i) {
+      // NaN fails every comparison; & (not &&) keeps the loop branch-free.
+      good &= (lo_open ? x[i] > lo : x[i] >= lo) & (hi_open ? x[i] < hi : x[i] <= hi);
+    }
+    ok &= good;
+  };
+  within(in.tau, 0.0, kInf, false, true);
+  within(in.omega, 0.0, 1.0, false, false);
+  within(in.g, -1.0, 1.0, true, true);
+  within(in.mu0, 0.0, 1.0, true, false);
+  within(in.solar, 0.0, kInf, false, true);
+  within(in.albedo_direct, 0.0, 1.0, false, false);
+  within(in.albedo_diffuse, 0.0, 1.0, false, false);
+  within(in.beam_path, 1.0, kInf, false, true);
+  within(in.rayleigh_fraction, 0.0, 1.0, false, false);
+  return ok;
+}
+
 }  // namespace
 
 std::string SolverOptions::validate() const {
@@ -431,6 +457,9 @@ Status validate(const ColumnBatch& in, const LevelFluxes& out) {
   if (!in.rayleigh_fraction.empty()) {
     if (auto m = size_is(in.rayleigh_fraction, nl * np, "rayleigh_fraction"); !m.empty()) return {false, m};
   }
+  // Fast pass: one vectorisable sweep that only says whether everything is in range (no early
+  // exit, no message); only when it fails do the loops below look for the first offender.
+  if (all_in_range(in)) return {};
   for (std::size_t i = 0; i < in.beam_path.size(); ++i) {
     if (!(in.beam_path[i] >= 1.0 && std::isfinite(in.beam_path[i]))) return {false, describe("beam_path", i, in.beam_path[i], "1 <= beam_path < inf")};
   }
