@@ -6,6 +6,7 @@
 #include <mutex>
 #include <numbers>
 #include <stdexcept>
+#include <utility>
 
 #include "optics/column_optics.hpp"
 #include "optics/h2o_lacis_hansen.hpp"
@@ -226,15 +227,15 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
     gas_lines.push_back(std::move(line));
     oo.gas_tables.push_back(std::move(t));
   }
-  const optics::ColumnOptics co = optics::build_column_optics(e.profile, grid, e.aerosol, oo);
+  optics::ColumnOptics co = optics::build_column_optics(e.profile, grid, e.aerosol, oo);
 
   Problems p;
   p.n = co.n_points;
   p.nl = co.n_layers;
-  p.tau = co.tau;
-  p.omega = co.omega;
-  p.g = co.g;
-  p.rayleigh_fraction = co.rayleigh_fraction;
+  p.tau = std::move(co.tau);
+  p.omega = std::move(co.omega);
+  p.g = std::move(co.g);
+  p.rayleigh_fraction = std::move(co.rayleigh_fraction);
   if (e.spherical_beam) {
     // Pseudo-spherical direct beam: each layer's geometric slant factor in a spherical shell
     // (sun::layer_slant_factors), the same for every spectral point.

@@ -366,29 +366,29 @@ std::string describe(const char* name, std::size_t index, double value, const ch
   return os.str();
 }
 
+/// Whether lo <= x[i] (lo < x[i] when kLoOpen) and x[i] <= hi (< hi when kHiOpen) for all i:
+/// NaN fails every comparison. Counting the failures keeps the loop branch-free so it vectorises.
+template <bool kLoOpen, bool kHiOpen>
+bool within(std::span<const double> v, double lo, double hi) {
+  const double* __restrict x = v.data();
+  const std::size_t n = v.size();
+  std::size_t bad = 0;
+  for (std::size_t i = 0; i < n; ++i) {
+    const bool above = kLoOpen ? x[i] > lo : x[i] >= lo;
+    const bool below = kHiOpen ? x[i] < hi : x[i] <= hi;
+    bad += (above && below) ? 0 : 1;
+  }
+  return bad == 0;
+}
+
 /// Whether every input of a correctly sized batch is in range (the rules of validate()).
 bool all_in_range(const ColumnBatch& in) {
   constexpr double kInf = std::numeric_limits<double>::infinity();
-  bool ok = true;
-  const auto within = [&](std::span<const double> v, double lo, double hi, bool lo_open, bool hi_open) {
-    const double* __restrict x = v.data();
-    bool good = true;
-    for (std::size_t i = 0; i < v.size(); ++i) {
-      // NaN fails every comparison; & (not &&) keeps the loop branch-free.
-      good &= (lo_open ? x[i] > lo : x[i] >= lo) & (hi_open ? x[i] < hi : x[i] <= hi);
-    }
-    ok &= good;
-  };
-  within(in.tau, 0.0, kInf, false, true);
-  within(in.omega, 0.0, 1.0, false, false);
-  within(in.g, -1.0, 1.0, true, true);
-  within(in.mu0, 0.0, 1.0, true, false);
-  within(in.solar, 0.0, kInf, false, true);
-  within(in.albedo_direct, 0.0, 1.0, false, false);
-  within(in.albedo_diffuse, 0.0, 1.0, false, false);
-  within(in.beam_path, 1.0, kInf, false, true);
-  within(in.rayleigh_fraction, 0.0, 1.0, false, false);
-  return ok;
+  return within<false, true>(in.tau, 0.0, kInf) && within<false, false>(in.omega, 0.0, 1.0) &&
+         within<true, true>(in.g, -1.0, 1.0) && within<true, false>(in.mu0, 0.0, 1.0) &&
+         within<false, true>(in.solar, 0.0, kInf) && within<false, false>(in.albedo_direct, 0.0, 1.0) &&
+         within<false, false>(in.albedo_diffuse, 0.0, 1.0) && within<false, true>(in.beam_path, 1.0, kInf) &&
+         within<false, false>(in.rayleigh_fraction, 0.0, 1.0);
 }
 
 }  // namespace
