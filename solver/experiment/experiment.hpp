@@ -213,6 +213,11 @@ Experiment parse_experiment(std::string text, const std::string& name,
                             const std::filesystem::path& base_dir, ProfileCache* profiles = nullptr,
                             std::optional<double> step_time_unix = std::nullopt);
 
+/// Sets the sun of `e` from the instant `t_unix` (s since 1970-01-01T00:00:00Z) at its site:
+/// apparent zenith (refraction at the profile's surface pressure and temperature), azimuth,
+/// Earth-Sun distance, and whether the sun is up (`e.site` must be given).
+void place_sun(Experiment& e, double t_unix);
+
 /// The most steps one time series may have (a year of 1-minute steps fits).
 inline constexpr std::size_t kMaxTimeSteps = 1'000'000;
 

@@ -369,18 +369,6 @@ sun::Site refraction_site(const Experiment& e) {
   return site;
 }
 
-/// Sets the sun of `e` from the instant `t` at its site: apparent zenith, azimuth, distance.
-void place_sun(Experiment& e, double t_unix) {
-  const sun::SolarPosition pos = sun::solar_position(refraction_site(e), {t_unix});
-  e.has_sun_position = true;
-  e.time_unix_s = t_unix;
-  e.solar_azimuth_deg = pos.azimuth_deg;
-  e.solar_zenith_deg = pos.zenith_deg;
-  e.sun_up = pos.zenith_deg < 90.0;
-  e.distance.day_of_year = 0.0;
-  e.distance.factor = pos.distance_factor;
-}
-
 void read_sun(Section& s, Experiment& e, bool series, std::optional<double> step_time) {
   const bool has_zenith = s.has("solar_zenith_deg"), has_time = s.has("time");
   if (series) {
@@ -942,6 +930,17 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
   (void)root.has("sweep");  // read by Study (experiment/sweep.hpp)
   root.check_no_unknown_keys();
   return e;
+}
+
+void place_sun(Experiment& e, double t_unix) {
+  const sun::SolarPosition pos = sun::solar_position(refraction_site(e), {t_unix});
+  e.has_sun_position = true;
+  e.time_unix_s = t_unix;
+  e.solar_azimuth_deg = pos.azimuth_deg;
+  e.solar_zenith_deg = pos.zenith_deg;
+  e.sun_up = pos.zenith_deg < 90.0;
+  e.distance.day_of_year = 0.0;
+  e.distance.factor = pos.distance_factor;
 }
 
 fs::path default_data_dir() {
