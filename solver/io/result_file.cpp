@@ -56,6 +56,7 @@ void write_global_attributes(Hdf5Writer& w, const experiment::Experiment& e, con
   w.set_attribute("", "experiment_file", e.source.string());
   w.set_attribute("", "experiment", e.text);
   w.set_attribute("", "closure", r.closure);
+  w.set_attribute("", "solver_precision", e.reference_solver ? "double" : e.single_precision ? "float" : "double");
   w.set_attribute("", "atmosphere_profile", e.given_optics_mode ? std::string("given_optics") : e.profile_origin);
   w.set_attribute("", "solar_spectrum", r.solar_description);
   w.set_attribute("", "solar_spectrum_approximate", r.solar_approximate ? 1 : 0);
