@@ -31,24 +31,25 @@ void keep_freed_memory() {
 #endif
 }
 
-AerosolEffect effect_of(const RunResult& with, const RunResult& without) {
+AerosolEffect effect_of(const RunResult& with, const std::vector<double>& without_net_down) {
   AerosolEffect a;
   const std::size_t s = with.n_levels - 1;
-  a.toa = with.net_down[0] - without.net_down[0];
-  a.surface = with.net_down[s] - without.net_down[s];
+  a.toa = with.net_down[0] - without_net_down[0];
+  a.surface = with.net_down[s] - without_net_down[s];
   a.atmosphere = a.toa - a.surface;
   return a;
 }
 
-/// Aerosol-free results, each computed once, shared between threads.
+/// The net downward flux of the aerosol-free cases (all the radiative effect needs), each
+/// computed once, shared between threads; a few hundred bytes per distinct case.
 class CleanCache {
  public:
   CleanCache(const Study& study, bool spectral) : study_(study), spectral_(spectral) {}
 
-  RunResult get(std::size_t scenario) {
+  std::vector<double> get(std::size_t scenario) {
     const std::string key = study_.aerosol_free_key(scenario);
-    std::shared_future<RunResult> fut;
-    std::optional<std::promise<RunResult>> mine;
+    std::shared_future<std::vector<double>> fut;
+    std::optional<std::promise<std::vector<double>>> mine;
     {
       std::lock_guard<std::mutex> lock(mutex_);
       auto it = cache_.find(key);
@@ -64,7 +65,7 @@ class CleanCache {
       try {
         Experiment e = study_.aerosol_free(scenario);
         e.output.spectral = false;
-        mine->set_value(run_experiment(e));
+        mine->set_value(run_experiment(e).net_down);
       } catch (...) {
         mine->set_exception(std::current_exception());
       }
@@ -82,7 +83,7 @@ class CleanCache {
   const Study& study_;
   bool spectral_;
   std::mutex mutex_;
-  std::map<std::string, std::shared_future<RunResult>> cache_;
+  std::map<std::string, std::shared_future<std::vector<double>>> cache_;
 };
 
 ScenarioResult solve_one(const Study& study, std::size_t i, bool spectral, CleanCache* clean) {
@@ -171,14 +172,25 @@ std::size_t run_scenarios(const Study& study, const std::vector<std::size_t>& to
                           const std::function<void(ScenarioResult&&)>& on_done) {
   CleanCache cache(study, options.spectral);
   CleanCache* clean = study.computes_aerosol_effect() ? &cache : nullptr;
-  // One slot per scenario to run; each is filled by its worker and emptied when handed over.
-  std::vector<std::optional<ScenarioResult>> slots(todo.size());
+  // Finished results waiting to be handed over (bounded by what the workers are ahead of the
+  // caller, not by the number of scenarios).
+  std::mutex slots_mutex;
+  std::map<std::size_t, ScenarioResult> slots;
   return run_parallel(
       todo.size(), options.threads, options.stop,
-      [&](std::size_t k) { slots[k] = solve_one(study, todo[k], options.spectral, clean); },
       [&](std::size_t k) {
-        ScenarioResult r = std::move(*slots[k]);
-        slots[k].reset();
+        ScenarioResult r = solve_one(study, todo[k], options.spectral, clean);
+        std::lock_guard<std::mutex> lock(slots_mutex);
+        slots.emplace(k, std::move(r));
+      },
+      [&](std::size_t k) {
+        ScenarioResult r;
+        {
+          std::lock_guard<std::mutex> lock(slots_mutex);
+          auto it = slots.find(k);
+          r = std::move(it->second);
+          slots.erase(it);
+        }
         on_done(std::move(r));
       });
 }
