@@ -19,14 +19,14 @@ namespace {
 /// glibc hands blocks above 128 KiB to mmap and returns them to the system when freed, and every
 /// scenario's optics and flux arrays are that large: each run then faults its pages in afresh
 /// and the kernel zeroes them (measured on a 400-scenario sweep: 466,509 page faults and 2.1x the
-/// CPU time). Keep freed memory for reuse: blocks up to 256 MiB come from the heap, and the heap
-/// is trimmed only above 512 MiB free (mallopt, glibc).
+/// CPU time). Keep freed memory for reuse: blocks up to 32 MiB come from the heap, and a heap is
+/// trimmed only above 64 MiB free (mallopt, glibc), so what is kept stays bounded.
 void keep_freed_memory() {
 #if defined(__GLIBC__)
   static std::once_flag once;
   std::call_once(once, [] {
-    mallopt(M_MMAP_THRESHOLD, 256 << 20);
-    mallopt(M_TRIM_THRESHOLD, 512 << 20);
+    mallopt(M_MMAP_THRESHOLD, 32 << 20);
+    mallopt(M_TRIM_THRESHOLD, 64 << 20);
   });
 #endif
 }
