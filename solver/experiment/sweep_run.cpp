@@ -110,9 +110,13 @@ std::size_t run_parallel(std::size_t count, unsigned threads, const std::atomic<
   std::atomic<std::size_t> next{0};
   std::mutex m;
   std::condition_variable cv;
+  std::condition_variable room;   // the consumer took an item: a waiting worker may go on
   std::deque<std::size_t> ready;  // finished items, handed over under the lock
   std::exception_ptr failure;
   const unsigned n_threads = std::max(1u, threads);
+  // Back-pressure: while the caller is busy (writing a snapshot of a large sweep, say), workers
+  // stop after this many finished items are waiting, so memory does not grow with the run.
+  const std::size_t max_waiting = 64 * std::size_t{n_threads};
   unsigned running = n_threads;
   const auto stopped = [&] { return stop && stop->load(); };
 
@@ -129,11 +133,16 @@ std::size_t run_parallel(std::size_t count, unsigned threads, const std::atomic<
       if (k >= count) break;
       try {
         work(k);
-        std::lock_guard<std::mutex> lock(m);
+        std::unique_lock<std::mutex> lock(m);
         ready.push_back(k);
+        cv.notify_one();
+        room.wait(lock, [&] { return ready.size() < max_waiting || failure != nullptr; });
       } catch (...) {
-        std::lock_guard<std::mutex> lock(m);
-        if (!failure) failure = std::current_exception();
+        {
+          std::lock_guard<std::mutex> lock(m);
+          if (!failure) failure = std::current_exception();
+        }
+        room.notify_all();
       }
       cv.notify_one();
     }
@@ -153,13 +162,17 @@ std::size_t run_parallel(std::size_t count, unsigned threads, const std::atomic<
     ready.pop_front();
     const bool failed = failure != nullptr;  // read under the lock (the workers write it)
     lock.unlock();
+    room.notify_all();
     if (!failed) {
       try {
         on_done(k);
         ++done;
       } catch (...) {
-        std::lock_guard<std::mutex> l2(m);
-        if (!failure) failure = std::current_exception();
+        {
+          std::lock_guard<std::mutex> l2(m);
+          if (!failure) failure = std::current_exception();
+        }
+        room.notify_all();
       }
     }
   }
