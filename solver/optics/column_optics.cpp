@@ -118,6 +118,37 @@ std::shared_ptr<const ClearOptics> cached_clear_optics(const spectrum::Grid& gri
   return entries.back().optics;
 }
 
+/// One layer of the mixing over its points (the arithmetic of OpticsMixer written out; Rayleigh,
+/// ozone, gas, aerosol in this order). A function of its own so that __restrict on the parameters
+/// lets the loop vectorise.
+void mix_layer(std::size_t np, const double* __restrict rp, const double* __restrict op, const double* __restrict tg_row,
+               const double* __restrict ap, const double* __restrict wp, const double* __restrict gp_,
+               double* __restrict tau, double* __restrict om, double* __restrict gg, double* __restrict rf,
+               double* __restrict ctr, double* __restrict cto, double* __restrict ctg, double* __restrict cta) {
+  constexpr double kMaxG = 1.0 - 1e-12;  // OpticsMixer's bound on |g|
+    for (std::size_t k = 0; k < np; ++k) {
+    const double r = rp[k], oz = op[k], tg = tg_row[k], a = ap[k];
+    const double w = wp[k], g = gp_[k];
+    const double t = ((r + oz) + tg) + a;
+    const double scat = r + w * a;
+    const double scat_g = g * w * a;
+    // Divisions by a safe denominator, then a select: branch-free, so the loop vectorises;
+    // the quotients are those of OpticsMixer wherever they are used.
+    const double t_safe = t > 0.0 ? t : 1.0, scat_safe = scat > 0.0 ? scat : 1.0;
+    const double w_mix = std::min(std::max(scat / t_safe, 0.0), 1.0);
+    const double g_mix = std::min(std::max(scat_g / scat_safe, -kMaxG), kMaxG);
+    const double f_ray = std::min(1.0, r / scat_safe);
+    tau[k] = t;
+    om[k] = t > 0.0 ? w_mix : 0.0;
+    gg[k] = scat > 0.0 ? g_mix : 0.0;
+    rf[k] = scat > 0.0 ? f_ray : 0.0;
+    ctr[k] += r;
+    cto[k] += oz;
+    ctg[k] += tg;
+    cta[k] += a;
+  }
+}
+
 }  // namespace
 
 ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::Grid& grid,
@@ -198,34 +229,28 @@ ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::
   // Mixing (the arithmetic of OpticsMixer, written out so that the loop over points vectorises:
   // layer outermost, every store contiguous). Order of the sums as in OpticsMixer: Rayleigh,
   // ozone, gas, aerosol.
-  constexpr double kMaxG = 1.0 - 1e-12;  // OpticsMixer's bound on |g|
-  const std::size_t* __restrict bin = o.point_bin.data();
+  // Per layer, the per-bin values are first spread over the points (a plain copy loop; gathers
+  // are not generated for every target), then the arithmetic runs as one vector loop.
+  std::vector<double> spread(5 * np);
+  double* __restrict rp = spread.data();
+  double* __restrict op = rp + np;
+  double* __restrict ap = rp + 2 * np;
+  double* __restrict wp = rp + 3 * np;
+  double* __restrict gp_ = rp + 4 * np;
+  for (std::size_t k = 0; k < np; ++k) {
+    wp[k] = wa[o.point_bin[k]];
+    gp_[k] = ga[o.point_bin[k]];
+  }
   for (std::size_t l = 0; l < nl; ++l) {
-    const double* __restrict tg_row = gp.tau.data() + l * np;
-    double* __restrict tau = o.tau.data() + l * np;
-    double* __restrict om = o.omega.data() + l * np;
-    double* __restrict gg = o.g.data() + l * np;
-    double* __restrict rf = o.rayleigh_fraction.data() + l * np;
-    double* __restrict ctr = o.column_tau_rayleigh.data();
-    double* __restrict cto = o.column_tau_ozone.data();
-    double* __restrict ctg = o.column_tau_gas.data();
-    double* __restrict cta = o.column_tau_aerosol.data();
     for (std::size_t k = 0; k < np; ++k) {
-      const std::size_t b = bin[k];
-      const double r = tr[b * nl + l], oz = to[b * nl + l], tg = tg_row[k], a = ta[b * nl + l];
-      const double w = wa[b], g = ga[b];
-      const double t = ((r + oz) + tg) + a;
-      const double scat = r + w * a;
-      const double scat_g = g * w * a;
-      tau[k] = t;
-      om[k] = t > 0.0 ? std::clamp(scat / t, 0.0, 1.0) : 0.0;
-      gg[k] = scat > 0.0 ? std::clamp(scat_g / scat, -kMaxG, kMaxG) : 0.0;
-      rf[k] = scat > 0.0 ? std::min(1.0, r / scat) : 0.0;
-      ctr[k] += r;
-      cto[k] += oz;
-      ctg[k] += tg;
-      cta[k] += a;
+      const std::size_t b = o.point_bin[k];
+      rp[k] = tr[b * nl + l];
+      op[k] = to[b * nl + l];
+      ap[k] = ta[b * nl + l];
     }
+    mix_layer(np, rp, op, gp.tau.data() + l * np, ap, wp, gp_, o.tau.data() + l * np, o.omega.data() + l * np,
+              o.g.data() + l * np, o.rayleigh_fraction.data() + l * np, o.column_tau_rayleigh.data(),
+              o.column_tau_ozone.data(), o.column_tau_gas.data(), o.column_tau_aerosol.data());
   }
   return o;
 }
