@@ -124,8 +124,9 @@ class PlotTest(unittest.TestCase):
             self.assertIn("wrote " + os.path.join(out, p), r.stdout)
 
     def test_every_kind_of_sweep_gets_a_figure(self):
-        expected = {"grid": ["grid_map.png", "grid_sweep.png"], "one": ["one_sweep.png"],
-                    "zip": ["zip_sweep.png"], "list": ["list_sweep.png"]}
+        expected = {"grid": ["grid_map.png", "grid_sweep.png", "grid_sweep_bands.png"],
+                    "one": ["one_sweep.png", "one_sweep_bands.png"], "zip": ["zip_sweep.png", "zip_sweep_bands.png"],
+                    "list": ["list_sweep.png", "list_sweep_bands.png"]}
         for name, want in expected.items():
             with self.subTest(sweep=name):
                 r, out, pngs = self.plot(name)
@@ -138,7 +139,7 @@ class PlotTest(unittest.TestCase):
         r, out, pngs = self.plot("grid", "--x", "sun.solar_zenith_deg", "--y", "aerosol.optical_depth",
                                  "--fix", "surface.albedo=0.3")
         self.assertEqual(r.returncode, 0, r.stderr)
-        self.assertEqual(pngs, ["grid_map.png", "grid_sweep.png"])
+        self.assertEqual(pngs, ["grid_map.png", "grid_sweep.png", "grid_sweep_bands.png"])
 
     def test_unknown_parameters_are_errors(self):
         bad = [("grid", ("--x", "aerosol.optical_dept"), "not a swept parameter"),
@@ -192,6 +193,14 @@ class PlotTest(unittest.TestCase):
         self.assertIn("held at: surface albedo 0.1", "\n".join(texts["sweep"]))
         self.assertIn("held at: surface albedo 0.3", "\n".join(texts["map"]))
         self.assertIn("solar zenith angle (°)", "\n".join(texts["sweep"]))
+        # Per-band panels: every band that lights the surface, named with its wavelengths.
+        with h5py.File(self.files["grid"], "r") as f:
+            bands, dark = plot.band_quantities(f)
+            plot.plot_sweep_lines(f, "grid", self.dir, sw, None, None, None, "grid.h5", bands, "sweep_bands")
+        joined = "\n".join(texts["sweep_bands"])
+        for band in ("UV-B: 280-315 nm", "UV-A: 315-400 nm", "PAR: 400-700 nm", "NIR: 700-4000 nm"):
+            self.assertIn("surface global, " + band, joined)
+        self.assertEqual(dark, ["UV-C: 250-280 nm"])  # absorbed by ozone above the ground
 
     def test_unknown_key_paths_become_words(self):
         plot = load_plot_module()
