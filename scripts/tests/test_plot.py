@@ -6,7 +6,7 @@ Exits 77 (ctest: skipped) when numpy, h5py or matplotlib is missing; scripts/set
 
 Checks: the command exits 0 and writes PNG files (signature and IHDR chunk as the PNG
 specification, ISO/IEC 15948, defines them) for a single run, a two-axis grid, a one-axis grid, a
-zip and a scenario list; the figures' texts show readable names, not key paths, and state the
+zip, a scenario list and a time series; the figures' texts show readable names, not key paths, and state the
 value of every swept parameter held fixed; an unknown --x, --y or --fix exits 2 and writes nothing.
 """
 import importlib.machinery
@@ -65,6 +65,14 @@ SWEEPS = {
   scenario_file: list.csv
 """,
 }
+# A time series: one day in three-hour steps at an invented site (replaces `sun`).
+SERIES = BASE.replace("sun:\n  solar_zenith_deg: 30\n", "") + """site: {latitude_deg: 47, longitude_deg: 8, elevation_m: 400}
+times:
+  start: "2026-06-15T00:00:00+02:00"
+  end: "2026-06-15T21:00:00+02:00"
+  step_minutes: 180
+  daily_totals: true
+"""
 
 
 def png_size(path):
@@ -92,10 +100,10 @@ class PlotTest(unittest.TestCase):
         with open(os.path.join(cls.dir, "list.csv"), "w") as fh:
             fh.write("aerosol.optical_depth,sun.solar_zenith_deg\n0.05,20\n0.3,20\n0.3,60\n")
         cls.files = {}
-        for name, extra in [("single", "")] + list(SWEEPS.items()):
+        for name, text in [("single", BASE), ("series", SERIES)] + [(k, BASE + v) for k, v in SWEEPS.items()]:
             yaml = os.path.join(cls.dir, name + ".yaml")
             with open(yaml, "w") as fh:
-                fh.write(BASE + extra)
+                fh.write(text)
             out = os.path.join(cls.dir, name + ".h5")
             args = [BINARY, "run", yaml, "-q", "-j", "1", "-o", out] + (["--spectral"] if name == "single" else [])
             subprocess.run(args, check=True, cwd=cls.dir)
@@ -126,7 +134,8 @@ class PlotTest(unittest.TestCase):
     def test_every_kind_of_sweep_gets_a_figure(self):
         expected = {"grid": ["grid_map.png", "grid_sweep.png", "grid_sweep_bands.png"],
                     "one": ["one_sweep.png", "one_sweep_bands.png"], "zip": ["zip_sweep.png", "zip_sweep_bands.png"],
-                    "list": ["list_sweep.png", "list_sweep_bands.png"]}
+                    "list": ["list_sweep.png", "list_sweep_bands.png"],
+                    "series": ["series_daily.png", "series_series.png"]}
         for name, want in expected.items():
             with self.subTest(sweep=name):
                 r, out, pngs = self.plot(name)
@@ -149,7 +158,8 @@ class PlotTest(unittest.TestCase):
                ("grid", ("--fix", "surface.albedo"), "PARAM=VALUE"),
                ("zip", ("--x", "sun.solar_zenith_deg", "--y", "aerosol.optical_depth"), "vary together"),
                ("list", ("--fix", "sun.solar_zenith_deg=20"), "scenario list"),
-               ("single", ("--x", "aerosol.optical_depth"), "single run")]
+               ("single", ("--x", "aerosol.optical_depth"), "single run"),
+               ("series", ("--fix", "aerosol.optical_depth=0.1"), "time series")]
         for name, args, message in bad:
             with self.subTest(args=args):
                 r, out, pngs = self.plot(name, *args)

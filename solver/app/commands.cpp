@@ -127,7 +127,7 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
   try {
     // Scenario 0 fixes the record layout; a fresh run records it first.
     const experiment::ScenarioResult templ = experiment::run_scenario(study, 0, spectral);
-    const bool with_effect = study.has_aerosol();
+    const bool with_effect = study.computes_aerosol_effect();
     const std::size_t record_values = io::scenario_record(templ, with_effect).size();
     std::optional<io::CheckpointWriter> writer;
     if (resuming) {
@@ -185,9 +185,10 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
     if (!e.output.csv.empty()) io::write_sweep_summary_csv(out, e.output.csv, study);
     if (!o.quiet) {
       const double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-      std::cout << "solstrata run: " << o.experiment << ": " << n << " scenarios";
+      std::cout << "solstrata run: " << o.experiment << ": " << n << (study.is_time_series() ? " cases" : " scenarios");
       if (resuming) std::cout << " (" << have.offsets.size() << " from the checkpoint)";
       std::cout << " in " << secs << " s on " << opt.threads << " thread(s)\n";
+      if (study.is_time_series()) print_time_series_summary(std::cout, out, study);
       if (with_effect) std::cout << "aerosol radiative effects: aerosol_effect_toa/surface/atmosphere (W m-2, negative = cooling)\n";
       std::cout << "caution: " << experiment::kSolarCaution << "\n";
       std::cout << "wrote " << out.string();
@@ -218,6 +219,10 @@ int check_command(const RunOptions& o) {
     for (const io::Field& f : io::result_fields(probe)) values += f.per_scenario ? f.values.size() * study.size() : f.values.size();
     print_check_summary(std::cout, study.base());
     std::cout << "  scenarios:   " << study.size();
+    if (study.is_time_series()) {
+      std::cout << " (" << study.plan().time.n_steps << " steps + " << study.plan().time.n_nodes()
+                << " daily-total quadrature points)";
+    }
     if (!study.plan().axes.empty()) {
       std::cout << " (" << (study.plan().from_list ? "list" : "grid");
       for (std::size_t a = 0; a < study.plan().axes.size(); ++a) std::cout << (a ? " x " : " ") << study.plan().axes[a].size();
@@ -251,7 +256,7 @@ int run_command(const RunOptions& o) {
       return kExitBadInput;
     }
   }
-  if (!study->plan().axes.empty()) return run_sweep(*study, e, o);
+  if (!study->plan().axes.empty() || study->is_time_series()) return run_sweep(*study, e, o);
   // A single run is short and leaves nothing to resume: signals act as usual again.
   std::signal(SIGINT, SIG_DFL);
   std::signal(SIGTERM, SIG_DFL);

@@ -1,10 +1,14 @@
 #include "app/summary_table.hpp"
 
+#include <algorithm>
 #include <cstdio>
 #include <ostream>
 #include <string>
 
+#include "io/hdf5_reader.hpp"
 #include "spectrum/grid.hpp"
+#include "sun/position.hpp"
+#include "sun/tilted_plane.hpp"
 
 namespace solstrata::app {
 namespace {
@@ -51,7 +55,23 @@ void print_check_summary(std::ostream& os, const experiment::Experiment& e) {
     for (const auto& b : g.bands()) os << " " << b.name << fmt(" (%g", b.lower_nm) << fmt("-%g)", b.upper_nm);
     os << "\n";
   }
-  os << "  sun:         solar zenith " << fmt("%g deg", e.solar_zenith_deg) << "\n";
+  if (e.site.given) {
+    os << "  site:        " << fmt("%.4f N, ", e.site.latitude_deg) << fmt("%.4f E", e.site.longitude_deg)
+       << (e.site.elevation_given ? fmt(", %g m", e.site.elevation_m) : std::string()) << "\n";
+  }
+  if (e.series.given) {
+    os << "  times:       " << e.series.times_unix.size() << " steps, " << e.series.times_text.front() << " to "
+       << e.series.times_text.back() << (e.series.daily_totals ? ", with daily totals" : "") << "\n";
+  } else if (e.has_sun_position) {
+    os << "  sun:         " << (e.sun_up ? "apparent solar zenith " : "below the horizon, zenith ") << fmt("%.3f deg", e.solar_zenith_deg)
+       << fmt(", azimuth %.3f deg", e.solar_azimuth_deg) << "\n";
+  } else {
+    os << "  sun:         solar zenith " << fmt("%g deg", e.solar_zenith_deg) << "\n";
+  }
+  if (e.plane.given) {
+    os << "  plane:       tilt " << fmt("%g deg", e.plane.tilt_deg) << fmt(", facing azimuth %g deg, ", e.plane.azimuth_deg)
+       << sun::to_string(e.plane.sky) << " sky diffuse\n";
+  }
   os << "  closure:     " << rt::to_string(e.closure) << "\n";
   os << "  output:      " << e.output.file.string() << (e.output.spectral ? " (with spectral fluxes)" : "") << "\n";
 }
@@ -59,7 +79,13 @@ void print_check_summary(std::ostream& os, const experiment::Experiment& e) {
 void print_run_summary(std::ostream& os, const experiment::Experiment& e, const experiment::RunResult& r) {
   os << "solstrata run: " << e.source.string();
   if (!e.title.empty()) os << " - " << e.title;
-  os << "\n" << fmt("solar zenith %.2f deg", r.solar_zenith_deg) << fmt(" (mu0 %.4f)", r.mu0)
+  os << "\n";
+  if (r.has_sun_position) {
+    os << sun::format_iso8601_utc({r.time_unix_s}) << fmt(" at %.4f N", e.site.latitude_deg)
+       << fmt(", %.4f E: ", e.site.longitude_deg) << fmt("solar azimuth %.2f deg, ", r.solar_azimuth_deg);
+    if (!r.sun_up) os << "the sun is below the horizon (all fluxes 0); ";
+  }
+  os << fmt("solar zenith %.2f deg", r.solar_zenith_deg) << fmt(" (mu0 %.4f)", r.mu0)
      << fmt(", Earth-Sun factor %.4f", r.earth_sun_factor) << ", closure " << r.closure << "\n\n";
   char line[200];
   std::snprintf(line, sizeof line, "%-12s %15s %9s %9s %9s %9s %8s %9s\n", "band", "range nm", "TOA down",
@@ -81,6 +107,12 @@ void print_run_summary(std::ostream& os, const experiment::Experiment& e, const 
     os << "         PAR " << fmt("%.1f W m-2", r.par_w_m2) << fmt(" = %.0f umol m-2 s-1", r.par_umol_m2_s)
        << ", UV index " << fmt("%.1f", r.uv_index) << (r.solar_approximate ? " (indicative)" : "") << "\n";
   }
+  if (r.has_plane) {
+    os << "tilted plane (tilt " << fmt("%g", e.plane.tilt_deg) << fmt(", facing %g deg, ", e.plane.azimuth_deg)
+       << sun::to_string(e.plane.sky) << " sky): " << fmt("%.1f W m-2", r.plane_global) << " = beam "
+       << fmt("%.1f", r.plane_beam) << " + sky diffuse " << fmt("%.1f", r.plane_sky_diffuse) << " + ground "
+       << fmt("%.1f", r.plane_ground) << fmt(", angle of incidence %.1f deg", r.angle_of_incidence_deg) << "\n";
+  }
   os << "planetary albedo " << fmt("%.4f", r.planetary_albedo) << ", absorbed: atmosphere "
      << fmt("%.1f", r.absorbed_atmosphere) << ", surface " << fmt("%.1f W m-2", r.absorbed_surface) << "\n";
   if (!e.given_optics_mode) {
@@ -98,6 +130,45 @@ void print_run_summary(std::ostream& os, const experiment::Experiment& e, const 
   }
   os << "caution: " << experiment::kSolarCaution << "\n";
   if (r.has_spectral_products) os << "caution: " << experiment::kUvCaution << "\n";
+  if (r.has_plane) os << "caution: " << sun::kPlaneCaution << "\n";
+}
+
+}  // namespace solstrata::app
+
+namespace solstrata::app {
+
+void print_time_series_summary(std::ostream& os, const std::filesystem::path& file, const experiment::Study& study) {
+  const std::vector<std::string> present = io::list_datasets(file);
+  const auto has = [&](const char* v) { return std::find(present.begin(), present.end(), v) != present.end(); };
+  const experiment::TimePlan& tp = study.plan().time;
+  const experiment::Experiment& e = study.base();
+  os << "time series: " << tp.n_steps << " steps";
+  if (tp.n_nodes()) os << " and " << tp.n_nodes() << " daily-total quadrature points";
+  os << "\n";
+  if (!has("daily_global_horizontal")) return;
+  const bool par = has("daily_par_energy"), plane = has("daily_plane_global");
+  const auto col = [&](const char* v) { return io::read_variable(file, v).values; };
+  const std::vector<double> toa = col("daily_toa_horizontal"), ghi = col("daily_global_horizontal"),
+                            dir = col("daily_direct_horizontal"), dif = col("daily_diffuse_horizontal"),
+                            hours = col("daylight_length");
+  const std::vector<double> pe = par ? col("daily_par_energy") : std::vector<double>(),
+                            pp = par ? col("daily_par_photon") : std::vector<double>(),
+                            poa = plane ? col("daily_plane_global") : std::vector<double>();
+  os << "daily totals, MJ m-2 (PAR photons mol m-2), local days at UTC" << (e.series.utc_offset_minutes < 0 ? "" : "+")
+     << fmt("%.4g h:", e.series.utc_offset_minutes / 60.0) << "\n";
+  os << "  day         daylight h    TOA  global  direct diffuse";
+  if (par) os << "   PAR  PAR mol";
+  if (plane) os << "  plane";
+  os << "\n";
+  for (std::size_t d = 0; d < toa.size(); ++d) {
+    const std::string day = sun::format_iso8601_utc({tp.day_start[d] + 60.0 * e.series.utc_offset_minutes}).substr(0, 10);
+    os << "  " << day << fmt("  %9.2f", hours[d]) << fmt(" %6.2f", toa[d]) << fmt("  %6.2f", ghi[d]) << fmt("  %6.2f", dir[d])
+       << fmt("  %6.2f", dif[d]);
+    if (par) os << fmt(" %5.2f", pe[d]) << fmt("  %7.2f", pp[d]);
+    if (plane) os << fmt(" %6.2f", poa[d]);
+    os << "\n";
+  }
+  if (plane) os << "caution: " << sun::kPlaneCaution << "\n";
 }
 
 }  // namespace solstrata::app

@@ -1,10 +1,12 @@
 // Terminal summaries of an experiment (check) and of a run's results.
 #pragma once
 
+#include <filesystem>
 #include <iosfwd>
 
 #include "experiment/experiment.hpp"
 #include "experiment/run.hpp"
+#include "experiment/sweep.hpp"
 
 namespace solstrata::app {
 
@@ -14,5 +16,8 @@ void print_check_summary(std::ostream& os, const experiment::Experiment& e);
 /// The short table of a run: per band and broadband TOA down, surface direct, diffuse, global,
 /// transmittance and atmospheric absorption; surface products; notes and cautions.
 void print_run_summary(std::ostream& os, const experiment::Experiment& e, const experiment::RunResult& r);
+
+/// The daily totals of a finished time-series file, one row per local day.
+void print_time_series_summary(std::ostream& os, const std::filesystem::path& file, const experiment::Study& study);
 
 }  // namespace solstrata::app

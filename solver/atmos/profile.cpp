@@ -146,4 +146,39 @@ void scale_h2o_to(Profile& p, double target_cm) {
   rescale_gas(p, p.h2o_ppmv, total_h2o_cm(p), target_cm, 100.0, "precipitable water", "cm", "h2o");
 }
 
+Profile cut_at_altitude(const Profile& p, double z_km) {
+  if (const std::string m = p.validate(); !m.empty()) throw std::invalid_argument(m);
+  const std::size_t n = p.n_levels();
+  if (!std::isfinite(z_km) || !(z_km < p.altitude_km.front()) || z_km < p.altitude_km.back() - 1e-3) {
+    std::ostringstream m;
+    m << "the site elevation " << z_km * 1000.0 << " m is outside the profile's altitude range ("
+      << p.altitude_km.back() * 1000.0 << " to " << p.altitude_km.front() * 1000.0 << " m)";
+    throw std::invalid_argument(m.str());
+  }
+  // The first level at or below z (levels run from the top down).
+  std::size_t k = 0;
+  while (k < n && p.altitude_km[k] > z_km + 1e-3) ++k;
+  Profile out = p;
+  const auto keep = [&](std::vector<double>& v, std::size_t count) {
+    if (!v.empty()) v.resize(count);
+  };
+  if (k < n && std::abs(p.altitude_km[k] - z_km) <= 1e-3) {
+    // Cut at an existing level.
+    for (auto* v : {&out.pressure_hpa, &out.temperature_k, &out.altitude_km, &out.ozone_ppmv, &out.h2o_ppmv}) keep(*v, k + 1);
+  } else {
+    // Between level k - 1 (above) and level k (below).
+    const std::size_t a = k - 1, b = k;
+    const double t = (p.altitude_km[a] - z_km) / (p.altitude_km[a] - p.altitude_km[b]);
+    const auto lin = [&](const std::vector<double>& v) { return v[a] + t * (v[b] - v[a]); };
+    for (auto* v : {&out.pressure_hpa, &out.temperature_k, &out.altitude_km, &out.ozone_ppmv, &out.h2o_ppmv}) keep(*v, k + 1);
+    out.pressure_hpa[k] = std::exp(std::log(p.pressure_hpa[a]) + t * (std::log(p.pressure_hpa[b]) - std::log(p.pressure_hpa[a])));
+    out.temperature_k[k] = lin(p.temperature_k);
+    out.altitude_km[k] = z_km;
+    if (!out.ozone_ppmv.empty()) out.ozone_ppmv[k] = lin(p.ozone_ppmv);
+    if (!out.h2o_ppmv.empty()) out.h2o_ppmv[k] = lin(p.h2o_ppmv);
+  }
+  if (out.n_levels() < 2) throw std::invalid_argument("the site elevation leaves no layer of the profile");
+  return out;
+}
+
 }  // namespace solstrata::atmos

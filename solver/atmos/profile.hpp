@@ -68,6 +68,14 @@ double total_ozone_du(const Profile& p);
 /// cm: total precipitable water of a valid profile.
 double total_h2o_cm(const Profile& p);
 
+/// The part of a valid profile above altitude `z_km` (a site's elevation): levels at or below
+/// `z_km` are removed and a new surface level is put at `z_km`, with pressure interpolated
+/// log-linearly in altitude (exact for an isothermal layer in hydrostatic balance, p = p0
+/// exp(-z/H)), temperature and mixing ratios linearly. A `z_km` within 1 m of an existing level
+/// cuts at that level. Throws std::invalid_argument when `z_km` is not inside the profile's
+/// altitude range (it must leave at least one layer).
+Profile cut_at_altitude(const Profile& p, double z_km);
+
 /// Multiplies the ozone mixing ratios so that the total column becomes `target_du` (> 0; the
 /// profile must have ozone). Throws std::invalid_argument naming the value otherwise.
 void scale_ozone_to(Profile& p, double target_du);

@@ -4,15 +4,18 @@
 #include <filesystem>
 #include <map>
 #include <memory>
+#include <optional>
 #include <string>
 #include <vector>
 
 #include "atmos/profile.hpp"
+#include "experiment/input_error.hpp"
 #include "optics/aerosol.hpp"
 #include "optics/column_optics.hpp"
 #include "rt/closure.hpp"
 #include "spectrum/grid.hpp"
 #include "sun/earth_sun.hpp"
+#include "sun/tilted_plane.hpp"
 
 namespace solstrata::experiment {
 
@@ -48,6 +51,45 @@ struct Absorber {
   std::shared_ptr<const optics::KTable> table;
 };
 
+/// Where the experiment is (section `site`): sets the sun's position from a time, the gravity
+/// latitude and, with an elevation, the bottom of the atmosphere.
+struct SiteSpec {
+  bool given = false;         ///< a `site` section was given
+  double latitude_deg = 0.0;  ///< degrees north, [-90, 90]
+  double longitude_deg = 0.0; ///< degrees east, [-180, 180]
+  double elevation_m = 0.0;   ///< m above mean sea level (the profile is cut there when given)
+  bool elevation_given = false;
+  SourceMark elevation_mark;  ///< where elevation_m is written
+};
+
+/// A tilted receiving plane (section `plane_of_array`), e.g. a solar collector.
+struct PlaneSpec {
+  bool given = false;
+  double tilt_deg = 0.0;      ///< degrees from horizontal, [0, 90]
+  double azimuth_deg = 180.0; ///< degrees from north, eastward, [0, 360): the way the plane faces
+  sun::SkyDiffuseModel sky = sun::SkyDiffuseModel::perez;
+  /// dimensionless: ground albedo seen by the plane; < 0 = the run's broadband surface reflectance
+  double ground_albedo = -1.0;
+};
+
+/// A time series (section `times`): the steps of a study over time at the site.
+struct TimeSeriesSpec {
+  bool given = false;
+  std::vector<double> times_unix;      ///< s since 1970-01-01T00:00:00Z of each step, increasing
+  std::vector<std::string> times_text; ///< each step's time as written (or generated, with its offset)
+  /// minutes: the UTC offset of the first time as written; local calendar days (for daily totals)
+  /// are counted in it
+  int utc_offset_minutes = 0;
+  /// key paths given per step by the inputs file (e.g. "aerosol.optical_depth"), and their
+  /// values [path][step]; NaN = the cell was empty (the experiment's own value holds)
+  std::vector<std::string> input_paths;
+  std::vector<std::vector<double>> inputs;
+  std::filesystem::path inputs_file;   ///< the per-step inputs CSV ("" when none)
+  std::vector<int> inputs_line;        ///< line of each step in the inputs file
+  bool daily_totals = true;            ///< integrate daily totals per local day
+  SourceMark mark;                     ///< where `times` is declared
+};
+
 /// Output choices.
 struct OutputConfig {
   std::filesystem::path file;  ///< the HDF5 file to write
@@ -78,15 +120,24 @@ struct Experiment {
   std::string aerosol_type;        ///< preset name used ("" when none)
   std::vector<Absorber> absorbers; ///< H2O, O2, CO2 in this order (atmosphere mode only)
 
-  double solar_zenith_deg = 0.0;   ///< degrees: solar zenith angle, [0, 90)
+  double solar_zenith_deg = 0.0;   ///< degrees: solar zenith angle, [0, 90) (apparent, when from a time)
+  SiteSpec site;                   ///< the site (section `site`), when given
+  /// true: the sun's position came from `site` and `sun.time` (then azimuth and time are set)
+  bool has_sun_position = false;
+  double time_unix_s = 0.0;        ///< s since 1970-01-01T00:00:00Z: the instant (has_sun_position)
+  double solar_azimuth_deg = 0.0;  ///< degrees from north, eastward (has_sun_position)
+  /// false: the sun is below the horizon at `time` (night): fluxes are zero, nothing is solved
+  bool sun_up = true;
+  PlaneSpec plane;                 ///< plane-of-array output, when asked for
+  TimeSeriesSpec series;           ///< the time series, when `times` is given (study level)
   /// true: the direct beam crosses each layer along its slant path in a spherical-shell
   /// atmosphere (pseudo-spherical; sun/air_mass.hpp); false: plane-parallel 1/mu0
   bool spherical_beam = true;
   sun::DistanceSpec distance;      ///< Earth-Sun distance factor (day of year or given)
   double irradiance_scale = 1.0;   ///< dimensionless: extra factor on the TOA irradiance, > 0
 
-  double albedo_direct = 0.0;      ///< dimensionless: surface albedo for the direct beam, [0, 1]
-  double albedo_diffuse = 0.0;     ///< dimensionless: surface albedo for diffuse light, [0, 1]
+  double albedo_direct = 0.2;      ///< dimensionless: surface albedo for the direct beam, [0, 1] (0.2 without a surface section, as documented)
+  double albedo_diffuse = 0.2;     ///< dimensionless: surface albedo for diffuse light, [0, 1]
   /// dimensionless: albedo for the bins of named reporting bands, overriding the above (both
   /// direct and diffuse)
   std::map<std::string, double> albedo_by_band;
@@ -153,8 +204,14 @@ std::string read_experiment_text(const std::filesystem::path& path);
 
 /// As load_experiment, from text; `name` stands for the file in messages and `base_dir` resolves
 /// relative paths.
+/// With `step_time_unix` (a time series step, s since 1970-01-01T00:00:00Z), the sun's position is
+/// that of this instant and the `times` section is not read again.
 Experiment parse_experiment(std::string text, const std::string& name,
-                            const std::filesystem::path& base_dir, ProfileCache* profiles = nullptr);
+                            const std::filesystem::path& base_dir, ProfileCache* profiles = nullptr,
+                            std::optional<double> step_time_unix = std::nullopt);
+
+/// The most steps one time series may have (a year of 1-minute steps fits).
+inline constexpr std::size_t kMaxTimeSteps = 1'000'000;
 
 /// Every top-level key of an experiment file, with a one-line description (for help texts and
 /// the key reference test).

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <cstdlib>
 #include <fstream>
+#include <limits>
 #include <map>
 #include <memory>
 #include <mutex>
@@ -15,6 +16,7 @@
 #include "experiment/experiment.hpp"
 #include "experiment/yaml_reader.hpp"
 #include "spectrum/solar.hpp"
+#include "sun/position.hpp"
 
 namespace solstrata::experiment {
 namespace {
@@ -197,7 +199,17 @@ void read_atmosphere(Section& s, Experiment& e, const fs::path& base, ProfileCac
   if (auto ab = s.optional_subsection("absorbers")) read_absorbers(*ab, e, base);
   s.check_no_unknown_keys();
   e.profile.co2_ppmv = co2.value;
-  e.profile.latitude_deg = lat.value;
+  e.profile.latitude_deg = lat.given() || !e.site.given ? lat.value : e.site.latitude_deg;
+  if (e.site.elevation_given) {
+    // The column above the site: the profile is cut at its elevation before any rescaling, so
+    // that ozone, precipitable water and surface pressure apply to the column above the site.
+    try {
+      e.profile = atmos::cut_at_altitude(e.profile, e.site.elevation_m / 1000.0);
+    } catch (const std::invalid_argument& ex) {
+      throw doc.error(e.site.elevation_mark, "site.elevation_m", ex.what());
+    }
+    e.profile_origin += "; cut at the site elevation " + format_number(e.site.elevation_m) + " m";
+  }
   if (ozone.given()) {
     if (atmos::total_ozone_du(e.profile) <= 0.0) {
       throw doc.error(ozone, "the profile has no ozone to rescale; give ozone_ppmv levels");
@@ -345,17 +357,256 @@ void read_aerosol(Section& s, Experiment& e) {
   }
 }
 
-void read_sun(Section& s, Experiment& e) {
-  e.solar_zenith_deg = s.required_number("solar_zenith_deg", Range::closed_open(0.0, 90.0), "degrees").value;
-  const auto day = s.optional_number("day_of_year", 0.0, Range::closed_open(1.0, 367.0));
-  const auto factor = s.optional_number("distance_factor", 0.0, Range::closed(0.9, 1.1));
-  if (day.given() && factor.given()) {
-    throw s.error("distance_factor", "give either day_of_year or distance_factor, not both");
+/// Refraction air at the site: the profile's surface (atmosphere mode), else standard air.
+sun::Site refraction_site(const Experiment& e) {
+  sun::Site site{e.site.latitude_deg, e.site.longitude_deg, 1013.25, 15.0};
+  if (!e.given_optics_mode && e.profile.n_levels() >= 2) {
+    site.pressure_hpa = e.profile.pressure_hpa.back();
+    site.temperature_c = e.profile.temperature_k.back() - 273.15;
   }
-  e.distance.day_of_year = day.value;
-  e.distance.factor = factor.value;
+  return site;
+}
+
+/// Sets the sun of `e` from the instant `t` at its site: apparent zenith, azimuth, distance.
+void place_sun(Experiment& e, double t_unix) {
+  const sun::SolarPosition pos = sun::solar_position(refraction_site(e), {t_unix});
+  e.has_sun_position = true;
+  e.time_unix_s = t_unix;
+  e.solar_azimuth_deg = pos.azimuth_deg;
+  e.solar_zenith_deg = pos.zenith_deg;
+  e.sun_up = pos.zenith_deg < 90.0;
+  e.distance.day_of_year = 0.0;
+  e.distance.factor = pos.distance_factor;
+}
+
+void read_sun(Section& s, Experiment& e, bool series, std::optional<double> step_time) {
+  const bool has_zenith = s.has("solar_zenith_deg"), has_time = s.has("time");
+  if (series) {
+    for (const char* k : {"solar_zenith_deg", "time", "day_of_year", "distance_factor"}) {
+      if (s.has(k)) {
+        throw s.error(k, std::string("'") + k + "' cannot be given with a 'times' section: each step's time sets "
+                         "the sun's position and the Earth-Sun distance");
+      }
+    }
+  }
+  if (has_zenith && has_time) {
+    throw s.error("time", "give either solar_zenith_deg or time (with a site), not both");
+  }
+  if (series || has_time) {
+    if (!e.site.given) {
+      throw s.error(series ? "" : "time", "the sun's position from a time needs a 'site' section (latitude_deg, "
+                                          "longitude_deg)");
+    }
+    for (const char* k : {"day_of_year", "distance_factor"}) {
+      if (s.has(k)) throw s.error(k, std::string("'") + k + "' cannot be given with 'time': the time sets the Earth-Sun distance");
+    }
+    double t = step_time.value_or(e.series.given ? e.series.times_unix.front() : 0.0);
+    if (has_time) {
+      const Located<std::string> text = s.required_string("time");
+      try {
+        t = sun::parse_iso8601(text.value).unix_seconds;
+      } catch (const std::invalid_argument& ex) {
+        throw s.document().error(text, ex.what());
+      }
+    }
+    place_sun(e, t);
+  } else {
+    e.solar_zenith_deg = s.required_number("solar_zenith_deg", Range::closed_open(0.0, 90.0), "degrees").value;
+    const auto day = s.optional_number("day_of_year", 0.0, Range::closed_open(1.0, 367.0));
+    const auto factor = s.optional_number("distance_factor", 0.0, Range::closed(0.9, 1.1));
+    if (day.given() && factor.given()) {
+      throw s.error("distance_factor", "give either day_of_year or distance_factor, not both");
+    }
+    e.distance.day_of_year = day.value;
+    e.distance.factor = factor.value;
+  }
   e.irradiance_scale = s.optional_number("irradiance_scale", 1.0, Range::open_closed(0.0, 10.0)).value;
   e.spherical_beam = s.optional_choice("beam_geometry", "spherical", {"spherical", "plane_parallel"}).value == "spherical";
+  s.check_no_unknown_keys();
+}
+
+void read_site(Section& s, Experiment& e) {
+  e.site.given = true;
+  e.site.latitude_deg = s.required_number("latitude_deg", Range::closed(-90.0, 90.0), "degrees").value;
+  e.site.longitude_deg = s.required_number("longitude_deg", Range::closed(-180.0, 180.0), "degrees").value;
+  const auto z = s.optional_number("elevation_m", 0.0, Range::closed(-500.0, 9000.0), "m");
+  e.site.elevation_given = z.given();
+  e.site.elevation_m = z.value;
+  e.site.elevation_mark = z.mark;
+  s.check_no_unknown_keys();
+}
+
+void read_plane(Section& s, Experiment& e) {
+  if (!e.has_sun_position) {
+    throw s.error("", "plane-of-array irradiance needs the sun's azimuth: give a 'site' and sun.time, or a "
+                      "'times' section");
+  }
+  e.plane.given = true;
+  e.plane.tilt_deg = s.required_number("tilt_deg", Range::closed(0.0, 90.0), "degrees").value;
+  e.plane.azimuth_deg = s.optional_number("azimuth_deg", e.site.latitude_deg >= 0.0 ? 180.0 : 0.0,
+                                          Range::closed_open(0.0, 360.0), "degrees").value;
+  e.plane.sky = *sun::parse_sky_diffuse_model(
+      s.optional_choice("sky_diffuse", "perez", {"isotropic", "hay_davies", "perez"}).value);
+  e.plane.ground_albedo = s.optional_number("ground_albedo", -1.0, Range::closed(0.0, 1.0)).value;
+  s.check_no_unknown_keys();
+}
+
+/// Splits one CSV line into trimmed cells.
+std::vector<std::string> csv_cells(const std::string& line) {
+  std::vector<std::string> cells;
+  std::string cell;
+  std::stringstream ss(line);
+  while (std::getline(ss, cell, ',')) {
+    while (!cell.empty() && (cell.back() == ' ' || cell.back() == '\t' || cell.back() == '\r')) cell.pop_back();
+    std::size_t b = 0;
+    while (b < cell.size() && (cell[b] == ' ' || cell[b] == '\t')) ++b;
+    cells.push_back(cell.substr(b));
+  }
+  if (!line.empty() && line.back() == ',') cells.emplace_back();
+  return cells;
+}
+
+/// times.inputs_file: a `time` column (ISO 8601 with offset) and per-step key-path columns.
+void read_inputs_file(const Document& doc, const Located<std::string>& f, const fs::path& base, TimeSeriesSpec& ts) {
+  const fs::path path = resolve(base, f.value);
+  std::error_code ec;
+  if (!fs::is_regular_file(path, ec)) {
+    throw doc.error(f, "inputs file '" + path.string() + "' does not exist or is not a regular file");
+  }
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw doc.error(f, "inputs file '" + path.string() + "' cannot be read");
+  ts.inputs_file = path;
+  const auto at = [&](int line, const std::string& msg) {
+    return InputError(path.string(), {line, 1}, "times.inputs_file", msg);
+  };
+  std::string line;
+  int row = 0;
+  std::vector<std::string> header;
+  while (std::getline(in, line)) {
+    ++row;
+    if (row == 1 && line.rfind("\xEF\xBB\xBF", 0) == 0) line.erase(0, 3);  // UTF-8 byte-order mark
+    if (!line.empty() && line.back() == '\r') line.pop_back();
+    if (line.empty() || line[0] == '#') continue;
+    header = csv_cells(line);
+    break;
+  }
+  if (header.empty()) throw at(row, "the inputs file has no header line (expected e.g. 'time,aerosol.optical_depth')");
+  std::size_t time_col = header.size();
+  for (std::size_t c = 0; c < header.size(); ++c) {
+    const std::string& h = header[c];
+    if (h == "time") {
+      if (time_col != header.size()) throw at(row, "column 'time' appears twice");
+      time_col = c;
+      continue;
+    }
+    for (const char* forbidden : {"sun.", "site.", "times", "output", "sweep", "plane_of_array."}) {
+      if (h.rfind(forbidden, 0) == 0) {
+        throw at(row, "column '" + h + "' cannot be given per step (per-step inputs are physical keys such as "
+                      "aerosol.optical_depth, atmosphere.precipitable_water_cm, atmosphere.ozone_column_du, surface.albedo)");
+      }
+    }
+    if (h.empty()) throw at(row, "column " + std::to_string(c + 1) + " has an empty name");
+    if (std::find(ts.input_paths.begin(), ts.input_paths.end(), h) != ts.input_paths.end()) {
+      throw at(row, "column '" + h + "' appears twice");
+    }
+    ts.input_paths.push_back(h);
+  }
+  if (time_col == header.size()) throw at(row, "the inputs file needs a 'time' column (ISO 8601 with UTC offset)");
+  ts.inputs.assign(ts.input_paths.size(), {});
+  while (std::getline(in, line)) {
+    ++row;
+    if (!line.empty() && line.back() == '\r') line.pop_back();
+    if (line.empty() || line[0] == '#') continue;
+    const std::vector<std::string> cells = csv_cells(line);
+    if (cells.size() != header.size()) {
+      throw at(row, "expected " + std::to_string(header.size()) + " cells, found " + std::to_string(cells.size()));
+    }
+    if (ts.times_unix.size() >= kMaxTimeSteps) {
+      throw at(row, "more than " + std::to_string(kMaxTimeSteps) + " steps; split the series into several studies");
+    }
+    sun::UtcTime t;
+    try {
+      t = sun::parse_iso8601(cells[time_col]);
+    } catch (const std::invalid_argument& ex) {
+      throw at(row, ex.what());
+    }
+    if (ts.times_unix.empty()) ts.utc_offset_minutes = t.utc_offset_minutes;
+    ts.times_unix.push_back(t.unix_seconds);
+    ts.times_text.push_back(cells[time_col]);
+    ts.inputs_line.push_back(row);
+    std::size_t k = 0;
+    for (std::size_t c = 0; c < cells.size(); ++c) {
+      if (c == time_col) continue;
+      double v = std::numeric_limits<double>::quiet_NaN();
+      if (!cells[c].empty()) {
+        char* end = nullptr;
+        v = std::strtod(cells[c].c_str(), &end);
+        if (end == cells[c].c_str() || *end != '\0' || !std::isfinite(v)) {
+          throw at(row, "column '" + header[c] + "': '" + cells[c] + "' is not a finite number (leave the cell empty "
+                        "to keep the experiment's value)");
+        }
+      }
+      ts.inputs[k++].push_back(v);
+    }
+  }
+  if (ts.times_unix.empty()) throw at(row, "the inputs file has no steps");
+}
+
+void read_times(Section& s, Experiment& e, const fs::path& base) {
+  const Document doc = s.document();
+  TimeSeriesSpec& ts = e.series;
+  ts.given = true;
+  ts.mark = s.mark();
+  const int forms = int(s.has("start")) + int(s.has("list")) + int(s.has("inputs_file"));
+  if (forms != 1) {
+    throw s.error(s.has("list") ? "list" : "start",
+                  "give exactly one of: start/end/step_minutes, a 'list' of times, or an 'inputs_file'");
+  }
+  const auto parse_time = [&](const Located<std::string>& text) {
+    try {
+      return sun::parse_iso8601(text.value);
+    } catch (const std::invalid_argument& ex) {
+      throw doc.error(text, ex.what());
+    }
+  };
+  if (s.has("start")) {
+    const Located<std::string> a = s.required_string("start"), b = s.required_string("end");
+    const auto step = s.required_number("step_minutes", Range::closed(1.0, 1440.0 * 31), "min");
+    const sun::UtcTime t0 = parse_time(a), t1 = parse_time(b);
+    if (!(t1.unix_seconds >= t0.unix_seconds)) throw doc.error(b, "the end comes before the start");
+    const double dt = step.value * 60.0;
+    const double count = std::floor((t1.unix_seconds - t0.unix_seconds) / dt + 1e-9) + 1.0;
+    if (count > double(kMaxTimeSteps)) {
+      throw doc.error(step, "the period has " + format_number(count) + " steps, more than the " +
+                                std::to_string(kMaxTimeSteps) + " one series may have; use a longer step or split it");
+    }
+    ts.utc_offset_minutes = t0.utc_offset_minutes;
+    for (std::size_t k = 0; k < static_cast<std::size_t>(count); ++k) {
+      const double t = t0.unix_seconds + double(k) * dt;
+      ts.times_unix.push_back(t);
+      ts.times_text.push_back(sun::format_iso8601_local(t, t0.utc_offset_minutes));
+    }
+  } else if (s.has("list")) {
+    const std::vector<Located<std::string>> items = s.string_list("list");
+    if (items.empty()) throw s.error("list", "the list of times is empty");
+    if (items.size() > kMaxTimeSteps) throw s.error("list", "more than " + std::to_string(kMaxTimeSteps) + " times");
+    for (const auto& it : items) {
+      const sun::UtcTime t = parse_time(it);
+      if (ts.times_unix.empty()) ts.utc_offset_minutes = t.utc_offset_minutes;
+      ts.times_unix.push_back(t.unix_seconds);
+      ts.times_text.push_back(it.value);
+    }
+  } else {
+    read_inputs_file(doc, s.required_string("inputs_file"), base, ts);
+  }
+  for (std::size_t k = 1; k < ts.times_unix.size(); ++k) {
+    if (!(ts.times_unix[k] > ts.times_unix[k - 1])) {
+      const std::string where = ts.inputs_file.empty() ? "" : " (line " + std::to_string(ts.inputs_line[k]) + " of " + ts.inputs_file.string() + ")";
+      throw s.error(ts.inputs_file.empty() ? (s.has("list") ? "list" : "start") : "inputs_file",
+                    "times must increase strictly: " + ts.times_text[k] + " does not follow " + ts.times_text[k - 1] + where);
+    }
+  }
+  ts.daily_totals = s.optional_bool("daily_totals", true).value;
   s.check_no_unknown_keys();
 }
 
@@ -516,7 +767,10 @@ const std::vector<std::pair<std::string, std::string>>& top_level_keys() {
       {"title", "a line describing the experiment"},
       {"atmosphere", "levels or profile, ozone column, CO2, which gases scatter/absorb"},
       {"aerosol", "optical depth, Angstrom law, single-scattering albedo, asymmetry, vertical shape"},
-      {"sun", "solar zenith angle, Earth-Sun distance, irradiance scaling"},
+      {"site", "latitude, longitude and elevation of the site (sun position from a time)"},
+      {"sun", "solar zenith angle or time, Earth-Sun distance, irradiance scaling, beam geometry"},
+      {"times", "a time series at the site: start/end/step, a list of times, or a CSV of per-step inputs"},
+      {"plane_of_array", "a tilted receiving plane: tilt, azimuth, sky-diffuse model, ground albedo"},
       {"surface", "Lambertian albedo (direct, diffuse, per band)"},
       {"spectrum", "wavelength bins, reporting bands, solar spectrum file"},
       {"solver", "two-stream closure, or the exact multi-stream reference"},
@@ -557,7 +811,7 @@ void ProfileCache::store(const fs::path& path, const atmos::Profile& p) {
 }
 
 Experiment parse_experiment(std::string text, const std::string& name, const fs::path& base_dir,
-                            ProfileCache* profiles) {
+                            ProfileCache* profiles, std::optional<double> step_time) {
   const Document doc = Document::parse(std::move(text), name);
   Section root = doc.root();
   Experiment e;
@@ -573,7 +827,22 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
     e.bands.insert(e.bands.begin(), spectrum::Band{"UV-C", e.segments.front().from_nm, e.bands.front().lower_nm});
   }
 
+  if (auto site = root.optional_subsection("site")) read_site(*site, e);
+  const bool series = root.has("times");
+  if (series && !step_time) {
+    if (root.has("sweep")) {
+      throw root.error("times", "a 'times' series cannot be combined with a 'sweep' in one study; run one study per "
+                                "sweep scenario");
+    }
+    if (!e.site.given) throw root.error("times", "a 'times' series needs a 'site' section (latitude_deg, longitude_deg)");
+    Section t = root.subsection("times");
+    read_times(t, e, base_dir);
+  }
   e.given_optics_mode = root.has("given_optics");
+  if (e.given_optics_mode && e.site.elevation_given) {
+    throw doc.error(e.site.elevation_mark, "site.elevation_m",
+                    "the site elevation cuts the atmosphere profile; given_optics has no profile (leave it out)");
+  }
   if (e.given_optics_mode) {
     for (const char* k : {"atmosphere", "aerosol", "spectrum"}) {
       if (root.has(k)) {
@@ -602,9 +871,14 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
     }
   }
   {
-    Section s = root.subsection("sun");
-    read_sun(s, e);
+    if (series && !root.has("sun")) {
+      place_sun(e, step_time.value_or(e.series.times_unix.front()));
+    } else {
+      Section s = root.subsection("sun");
+      read_sun(s, e, series, step_time);
+    }
   }
+  if (auto p = root.optional_subsection("plane_of_array")) read_plane(*p, e);
   if (auto s = root.optional_subsection("surface")) read_surface(*s, e);
   if (auto s = root.optional_subsection("solver")) {
     e.closure = *rt::parse_closure(s->optional_choice("closure", "delta_eddington", kClosureNames).value);

@@ -14,6 +14,7 @@
 #include "rt/two_stream.hpp"
 #include "spectrum/solar.hpp"
 #include "sun/air_mass.hpp"
+#include "sun/tilted_plane.hpp"
 
 namespace solstrata::experiment {
 namespace {
@@ -37,6 +38,8 @@ Fluxes solve(const Problems& p, const Experiment& e) {
   f.dir.assign(nlev * p.n, 0.0);
   f.dif.assign(nlev * p.n, 0.0);
   f.up.assign(nlev * p.n, 0.0);
+  // No light (the sun below the horizon): every flux is exactly 0, nothing to solve.
+  if (std::all_of(p.solar.begin(), p.solar.end(), [](double v) { return v == 0.0; })) return f;
   rt::ColumnBatch batch{p.n, p.nl, p.tau, p.omega, p.g, p.mu0, p.solar, p.albedo_direct, p.albedo_diffuse};
   batch.rayleigh_fraction = p.rayleigh_fraction;  // the reference's Rayleigh phase function
   batch.beam_path = p.beam_path;                  // pseudo-spherical direct beam
@@ -49,7 +52,7 @@ Fluxes solve(const Problems& p, const Experiment& e) {
   }
   rt::SolverOptions opt;
   opt.closure = e.closure;
-  rt::Workspace work;
+  thread_local rt::Workspace work;  // reused: no allocation and zeroing per run
   const rt::Status st = rt::solve_columns(batch, opt, {f.dir, f.dif, f.up}, work);
   if (!st.ok) throw std::runtime_error("two-stream solver: " + st.message);
   return f;
@@ -375,22 +378,66 @@ std::vector<BandSummary> band_summary(const RunResult& r) {
   return rows;
 }
 
+namespace {
+
+/// Plane-of-array irradiance of a finished result (sun/tilted_plane.hpp).
+void add_plane(const Experiment& e, RunResult& r) {
+  r.has_plane = true;
+  r.angle_of_incidence_deg =
+      sun::angle_of_incidence_deg(e.solar_zenith_deg, e.solar_azimuth_deg, e.plane.tilt_deg, e.plane.azimuth_deg);
+  r.plane_ground_albedo = e.plane.ground_albedo >= 0.0 ? e.plane.ground_albedo : r.surface_reflectance;
+  if (!r.sun_up) return;
+  sun::PlaneInputs in;
+  in.dni = r.direct_normal;
+  in.dhi = r.diffuse_horizontal;
+  in.ghi = r.global_horizontal;
+  in.albedo = r.plane_ground_albedo;
+  in.zenith_deg = e.solar_zenith_deg;
+  in.aoi_deg = r.angle_of_incidence_deg;
+  in.tilt_deg = e.plane.tilt_deg;
+  in.extraterrestrial_normal = r.toa_normal_w_m2;
+  in.air_mass = sun::kasten_young_air_mass(std::min(e.solar_zenith_deg, 90.0));
+  const sun::PlaneIrradiance pi = sun::plane_of_array(in, e.plane.sky);
+  r.plane_beam = pi.beam;
+  r.plane_sky_diffuse = pi.sky_diffuse;
+  r.plane_ground = pi.ground;
+  r.plane_global = pi.total();
+}
+
+}  // namespace
+
 RunResult run_experiment(const Experiment& e) {
-  const double mu0 = std::cos(e.solar_zenith_deg * std::numbers::pi / 180.0);
+  // The sun below the horizon: the same run with no light (zero irradiance: nothing is solved),
+  // so that the result has the layout of a daytime one; the zenith angle stays the true one.
+  const bool night = !e.sun_up;
+  const double zenith = night ? 0.0 : e.solar_zenith_deg;
+  const double mu0 = std::cos(zenith * std::numbers::pi / 180.0);
   const double distance = e.distance.resolve();
-  const double factor = distance * e.irradiance_scale;
+  const double factor = night ? 0.0 : distance * e.irradiance_scale;
   RunResult r;
   try {
-    r = e.given_optics_mode ? run_given(e, mu0, factor) : run_atmosphere(e, mu0, factor);
+    if (night) {
+      Experiment dark = e;
+      dark.solar_zenith_deg = 0.0;
+      r = dark.given_optics_mode ? run_given(dark, mu0, factor) : run_atmosphere(dark, mu0, factor);
+    } else {
+      r = e.given_optics_mode ? run_given(e, mu0, factor) : run_atmosphere(e, mu0, factor);
+    }
   } catch (const std::invalid_argument& ex) {
     throw std::runtime_error(ex.what());
   }
   r.solar_zenith_deg = e.solar_zenith_deg;
-  r.mu0 = mu0;
+  r.mu0 = night ? std::cos(e.solar_zenith_deg * std::numbers::pi / 180.0) : mu0;
   r.earth_sun_factor = distance;
   r.closure = e.reference_solver ? "reference_discrete_ordinates_" + std::to_string(e.reference_streams) + "_streams"
                                  : std::string(rt::to_string(e.closure));
   derive(r);
+  r.has_sun_position = e.has_sun_position;
+  r.time_unix_s = e.time_unix_s;
+  r.solar_azimuth_deg = e.solar_azimuth_deg;
+  r.sun_up = e.sun_up;
+  if (night) r.direct_normal = r.diffuse_horizontal = r.global_horizontal = 0.0;
+  if (e.plane.given) add_plane(e, r);
   return r;
 }
 

@@ -72,6 +72,19 @@ struct RunResult {
   double par_w_m2 = 0;                   ///< W m-2: global PAR (400-700 nm) at the surface
   double par_umol_m2_s = 0;              ///< umol m-2 s-1: PAR photon flux at the surface
   double uv_index = 0;                   ///< dimensionless: UV index at the surface
+
+  // Sun position (experiments with a site and a time).
+  bool has_sun_position = false;
+  double time_unix_s = 0;                ///< s since 1970-01-01T00:00:00Z
+  double solar_azimuth_deg = 0;          ///< degrees from north, eastward
+  /// false: the sun is below the horizon; every flux and ratio is 0 and nothing was solved
+  bool sun_up = true;
+
+  // Plane of array (experiments with plane_of_array), W m-2 on the tilted plane.
+  bool has_plane = false;
+  double plane_beam = 0, plane_sky_diffuse = 0, plane_ground = 0, plane_global = 0;
+  double angle_of_incidence_deg = 0;     ///< degrees: between the sun and the plane's normal
+  double plane_ground_albedo = 0;        ///< dimensionless: the ground albedo used
 };
 
 /// One row of the per-band summary: what the terminal table and the CSV summary show.

@@ -1,5 +1,6 @@
 #include "experiment/sweep.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
@@ -10,6 +11,8 @@
 #include <yaml-cpp/yaml.h>
 
 #include "experiment/yaml_reader.hpp"
+#include "sun/daily.hpp"
+#include "sun/tilted_plane.hpp"
 
 namespace solstrata::experiment {
 namespace {
@@ -128,15 +131,82 @@ std::string format_value(double v) {
   return os.str();
 }
 
+/// The steps and daily-total nodes of a time series.
+TimePlan make_time_plan(const Experiment& base) {
+  const TimeSeriesSpec& ts = base.series;
+  TimePlan tp;
+  tp.n_steps = ts.times_unix.size();
+  if (!ts.daily_totals) return tp;
+  sun::Site site{base.site.latitude_deg, base.site.longitude_deg, 1013.25, 15.0};
+  if (!base.given_optics_mode) {
+    site.pressure_hpa = base.profile.pressure_hpa.back();
+    site.temperature_c = base.profile.temperature_k.back() - 273.15;
+  }
+  const double offset = 60.0 * ts.utc_offset_minutes;
+  const auto local_midnight = [&](double t) { return std::floor((t + offset) / 86400.0) * 86400.0 - offset; };
+  const double first = local_midnight(ts.times_unix.front()), last = local_midnight(ts.times_unix.back());
+  const sun::GaussLegendre q = sun::gauss_legendre(kDailyNodes), q_low = sun::gauss_legendre(kDailyLowSunNodes);
+  const auto add_nodes = [&](const sun::GaussLegendre& g, double a, double b, std::size_t day) {
+    const double mid = 0.5 * (a + b), half = 0.5 * (b - a);
+    for (std::size_t k = 0; k < g.x.size(); ++k) {
+      const double t = mid + half * g.x[k];
+      tp.node_time.push_back(t);
+      tp.node_weight.push_back(half * g.w[k]);
+      tp.node_day.push_back(day);
+      // The step nearest in time gives the node its per-step inputs.
+      const auto it = std::lower_bound(ts.times_unix.begin(), ts.times_unix.end(), t);
+      std::size_t j = static_cast<std::size_t>(it - ts.times_unix.begin());
+      if (j == ts.times_unix.size() || (j > 0 && t - ts.times_unix[j - 1] <= ts.times_unix[j] - t)) --j;
+      tp.node_step.push_back(j);
+    }
+  };
+  for (double d0 = first; d0 <= last + 1.0; d0 += 86400.0) {
+    const std::size_t day = tp.day_start.size();
+    tp.day_start.push_back(d0);
+    double daylight = 0.0;
+    for (const auto& [rise, set] : sun::daylight_intervals(site, d0, d0 + 86400.0, true)) {
+      daylight += set - rise;
+      // Pieces between the instants where the integrand has a kink: the sun crossing kLowSunDeg
+      // of elevation (the sky-diffuse models change form there) and, with a tilted plane, the sun
+      // crossing the plane (the beam on it starts or stops). Each piece has its own
+      // Gauss-Legendre rule: kDailyNodes with the sun high, kDailyLowSunNodes with it low.
+      const auto elevation = [&](double t) { return 90.0 - sun::solar_position(site, {t}).zenith_deg; };
+      std::vector<double> cuts = sun::sign_changes([&](double t) { return elevation(t) - kLowSunDeg; }, rise, set);
+      if (base.plane.given) {
+        for (double c : sun::sign_changes(
+                 [&](double t) {
+                   const sun::SolarPosition p = sun::solar_position(site, {t});
+                   return 90.0 - sun::angle_of_incidence_deg(p.zenith_deg, p.azimuth_deg, base.plane.tilt_deg,
+                                                             base.plane.azimuth_deg);
+                 },
+                 rise, set))
+          cuts.push_back(c);
+      }
+      cuts.push_back(rise);
+      cuts.push_back(set);
+      std::sort(cuts.begin(), cuts.end());
+      for (std::size_t c = 0; c + 1 < cuts.size(); ++c) {
+        const double a = cuts[c], b = cuts[c + 1];
+        if (b - a < 1e-3) continue;
+        add_nodes(elevation(0.5 * (a + b)) > kLowSunDeg ? q : q_low, a, b, day);
+      }
+    }
+    tp.daylight_s.push_back(daylight);
+  }
+  return tp;
+}
+
 }  // namespace
 
 std::size_t SweepPlan::n_scenarios() const {
+  if (time_series) return time.n_steps + time.n_nodes();
   std::size_t n = 1;
   for (const SweepAxis& a : axes) n *= a.size();
   return n;
 }
 
 std::vector<std::size_t> SweepPlan::shape() const {
+  if (time_series) return {time.n_steps};
   std::vector<std::size_t> s;
   for (const SweepAxis& a : axes) s.push_back(a.size());
   return s;
@@ -283,12 +353,20 @@ Study Study::parse(std::string text, const std::string& name, const fs::path& ba
       }
     }
   }
+  if (s.base_.series.given) {
+    s.plan_.time_series = true;
+    s.plan_.time = make_time_plan(s.base_);
+    if (s.plan_.n_scenarios() > kMaxScenarios) {
+      throw s.impl_->doc->error(s.base_.series.mark, "times", "the series has too many steps and daily-total nodes");
+    }
+  }
   s.impl_->root = YAML::Load(text);
   if (s.impl_->root.IsMap()) s.impl_->root.remove("sweep");
   return s;
 }
 
 Experiment Study::scenario(std::size_t i) const {
+  if (plan_.time_series) return time_step(i);
   if (plan_.axes.empty()) return parse_experiment(impl_->text, impl_->name, impl_->base_dir);
   YAML::Node n = YAML::Clone(impl_->root);
   const auto assign = plan_.assignment(i);
@@ -314,6 +392,39 @@ Experiment Study::scenario(std::size_t i) const {
   }
 }
 
+Experiment Study::time_step(std::size_t i) const {
+  const TimeSeriesSpec& ts = base_.series;
+  const TimePlan& tp = plan_.time;
+  if (i >= plan_.n_scenarios()) throw std::out_of_range("time series case " + std::to_string(i) + " does not exist");
+  const bool node = i >= tp.n_steps;
+  const double t = node ? tp.node_time[i - tp.n_steps] : ts.times_unix[i];
+  const std::size_t row = node ? tp.node_step[i - tp.n_steps] : i;
+  std::vector<std::pair<std::string, double>> assign;
+  for (std::size_t k = 0; k < ts.input_paths.size(); ++k) {
+    const double v = ts.inputs[k][row];
+    if (!std::isnan(v)) assign.emplace_back(ts.input_paths[k], v);
+  }
+  const std::string when = "step " + std::to_string(row) + " (" + ts.times_text[row] + ")";
+  const auto at_row = [&](const std::string& key, const std::string& msg) {
+    return InputError(ts.inputs_file.string(), {ts.inputs_line.empty() ? 0 : ts.inputs_line[row], 1}, key, msg);
+  };
+  if (assign.empty()) {
+    Experiment e = parse_experiment(impl_->text, impl_->name, impl_->base_dir, impl_->profiles.get(), t);
+    return e;
+  }
+  YAML::Node n = YAML::Clone(impl_->root);
+  for (const auto& [path, value] : assign) {
+    if (std::string err = set_path(n, path, value); !err.empty()) throw at_row(path, when + ": " + err);
+  }
+  try {
+    Experiment e = parse_experiment(emit(n), impl_->name, impl_->base_dir, impl_->profiles.get(), t);
+    e.text = impl_->text;
+    return e;
+  } catch (const InputError& ex) {
+    throw at_row(ex.key_path(), when + " is invalid: " + ex.message());
+  }
+}
+
 std::string Study::aerosol_free_key(std::size_t i) const {
   YAML::Node n = YAML::Clone(impl_->root);
   for (const auto& [path, value] : plan_.assignment(i)) (void)set_path(n, path, value);
@@ -335,6 +446,16 @@ bool Study::has_aerosol() const {
 }
 
 void Study::validate_all() const {
+  if (plan_.time_series) {
+    // Only the per-step inputs can make a step invalid (a time is always a valid sun): each step
+    // with inputs once; the daily-total nodes reuse the steps' inputs.
+    if (base_.series.input_paths.empty()) {
+      (void)scenario(0);
+      return;
+    }
+    for (std::size_t i = 0; i < plan_.time.n_steps; ++i) (void)scenario(i);
+    return;
+  }
   for (std::size_t i = 0; i < size(); ++i) (void)scenario(i);
 }
 

@@ -1,5 +1,7 @@
 #include "io/result_fields.hpp"
 
+#include "sun/tilted_plane.hpp"
+
 namespace solstrata::io {
 
 ResultDims result_dims(const experiment::RunResult& r) {
@@ -106,6 +108,25 @@ std::vector<Field> result_fields(const experiment::RunResult& r) {
   scalar("cos_solar_zenith", r.mu0, "1", "cosine of the solar zenith angle");
   scalar("earth_sun_factor", r.earth_sun_factor, "1", "(mean Earth-Sun distance / distance)^2 applied to the TOA irradiance");
   scalar("toa_normal_irradiance", r.toa_normal_w_m2, "W m-2", "TOA solar irradiance normal to the beam, all bins");
+  if (r.has_sun_position) {
+    scalar("solar_azimuth_angle", r.solar_azimuth_deg, "degree", "solar azimuth angle, clockwise from north", "solar_azimuth_angle");
+    scalar("sun_above_horizon", r.sun_up ? 1.0 : 0.0, "1",
+           "1 when the centre of the (refracted) sun is above the horizon; 0 at night, when every flux and ratio is 0 "
+           "and nothing was solved");
+  }
+  if (r.has_plane) {
+    const auto plane = [&](const char* name, double v, const char* what) -> Field& {
+      Field& x = scalar(name, v, "W m-2", what);
+      x.notes = {{"caution", sun::kPlaneCaution}};
+      return x;
+    };
+    plane("plane_beam_irradiance", r.plane_beam, "direct-beam irradiance on the tilted plane, DNI cos(angle of incidence)");
+    plane("plane_sky_diffuse_irradiance", r.plane_sky_diffuse, "sky-diffuse irradiance on the tilted plane");
+    plane("plane_ground_reflected_irradiance", r.plane_ground, "ground-reflected irradiance on the tilted plane, albedo GHI (1 - cos tilt)/2");
+    plane("plane_global_irradiance", r.plane_global, "global (plane-of-array) irradiance on the tilted plane: beam + sky diffuse + ground reflected");
+    scalar("angle_of_incidence", r.angle_of_incidence_deg, "degree", "angle between the sun and the normal of the tilted plane");
+    scalar("plane_ground_albedo", r.plane_ground_albedo, "1", "ground albedo seen by the tilted plane");
+  }
 
   if (!r.bin_direct_down.empty()) {
     add("bin_lower", {"wavelength"}, r.bin_lower_nm, "nm", "lower edge of the spectral bin").per_scenario = false;

@@ -8,6 +8,7 @@
 #include "io/csv_writer.hpp"
 #include "io/hdf5_reader.hpp"
 #include "io/hdf5_writer.hpp"
+#include "io/result_file_detail.hpp"
 #include "io/result_fields.hpp"
 #include "io/sweep_file.hpp"
 #include "version.hpp"
@@ -18,6 +19,9 @@ namespace {
 using experiment::RunResult;
 
 }  // namespace
+using detail::add_result_dimensions;
+using detail::set_field_attributes;
+using detail::write_global_attributes;
 
 std::string iso_timestamp_utc() {
   const std::time_t t = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
@@ -28,6 +32,7 @@ std::string iso_timestamp_utc() {
   return buf;
 }
 
+namespace detail {
 void write_global_attributes(Hdf5Writer& w, const experiment::Experiment& e, const RunResult& r) {
   w.set_attribute("", "Conventions", "CF-1.8");
   w.set_attribute("", "title", e.title.empty() ? std::string("solstrata run of ") + e.source.string() : e.title);
@@ -64,7 +69,9 @@ void write_global_attributes(Hdf5Writer& w, const experiment::Experiment& e, con
                   "(forward scattering folded into the beam by delta scaling counts as diffuse)");
   w.set_attribute("", "caution", std::string(experiment::kSolarCaution) + " " + experiment::kUvCaution);
 }
+}  // namespace detail
 
+namespace detail {
 void add_result_dimensions(Hdf5Writer& w, const RunResult& r) {
   const ResultDims d = result_dims(r);
   w.add_dimension("level", d.level);
@@ -74,10 +81,13 @@ void add_result_dimensions(Hdf5Writer& w, const RunResult& r) {
     w.add_coordinate("wavelength", r.bin_center_nm, {"nm", "centre wavelength of the spectral bin", "radiation_wavelength"});
   }
 }
+}  // namespace detail
 
+namespace detail {
 void set_field_attributes(Hdf5Writer& w, const Field& f) {
   for (const auto& [k, v] : f.notes) w.set_attribute(f.name, k, v);
 }
+}  // namespace detail
 
 void write_result_file(const std::filesystem::path& path, const experiment::Experiment& e,
                        const RunResult& r) {
@@ -148,7 +158,11 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
   // netCDF's default fill value for doubles (NC_FILL_DOUBLE): readers show it as missing.
   constexpr double kFill = 9.9692099683868690e+36;
   const std::size_t n = study.size();
-  const bool with_effect = study.has_aerosol();
+  if (study.is_time_series()) {
+    write_time_series_file(path, study, templ, checkpoint, contents, partial);
+    return;
+  }
+  const bool with_effect = study.computes_aerosol_effect();
   const std::vector<Field> fields = result_fields(templ.result);
   Hdf5Writer w(path);
   add_result_dimensions(w, templ.result);
@@ -278,6 +292,10 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
 
 void write_sweep_summary_csv(const std::filesystem::path& sweep_file, const std::filesystem::path& csv,
                              const experiment::Study& study) {
+  if (study.is_time_series()) {
+    write_time_series_csv(sweep_file, csv, study);
+    return;
+  }
   std::vector<std::string> header{"scenario"};
   std::vector<std::vector<double>> columns;
   for (const experiment::SweepParameter* p : study.plan().parameters()) {

@@ -29,6 +29,18 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
                       const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
                       const CheckpointContents& contents, bool partial = false);
 
+/// The file of a time series (write_sweep_file calls it for a time-series study): a CF `time`
+/// dimension and coordinate over the steps, with the sun's position per step; daily totals on a
+/// `day` dimension from the quadrature nodes. Same atomicity and `partial` rules as
+/// write_sweep_file (days with a node still to run hold fill values).
+void write_time_series_file(const std::filesystem::path& path, const experiment::Study& study,
+                            const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
+                            const CheckpointContents& contents, bool partial);
+
+/// Writes a flat CSV of a finished time-series file: one row per step with its local time.
+void write_time_series_csv(const std::filesystem::path& series_file, const std::filesystem::path& csv,
+                           const experiment::Study& study);
+
 /// Writes a flat CSV of a finished sweep file: one row per scenario with its swept parameters and
 /// the scalar surface, TOA and radiative-effect products. Atomic.
 void write_sweep_summary_csv(const std::filesystem::path& sweep_file, const std::filesystem::path& csv,

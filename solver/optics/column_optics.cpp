@@ -63,6 +63,61 @@ std::shared_ptr<const GasPoints> cached_gas_points(const spectrum::Grid& grid, c
   return entries.back().points;
 }
 
+/// Rayleigh and ozone optical depth of every layer in every bin, [bin * n_layers + layer].
+struct ClearOptics {
+  std::vector<double> rayleigh, ozone;
+};
+
+/// The clear-sky (Rayleigh and ozone) optics of the last few distinct columns, for the same
+/// reason and with the same exact comparison as cached_gas_points: a sweep over the aerosol, the
+/// sun or the surface evaluates its cross sections (an exponential and a logarithm per layer and
+/// bin for the ozone temperature dependence) once. Thread-safe.
+std::shared_ptr<const ClearOptics> cached_clear_optics(const spectrum::Grid& grid, const atmos::LayerColumns& cols,
+                                                       double co2_ppmv, const OpticsOptions& options) {
+  struct Entry {
+    std::vector<double> centres, air, ozone, temperature;
+    double co2;
+    bool rayleigh, ozone_on, ozone_t;
+    std::shared_ptr<const ClearOptics> optics;
+  };
+  static std::mutex mutex;
+  static std::vector<Entry> entries;  // most recent last
+  constexpr std::size_t kKeep = 8;
+  Entry key{{}, cols.air, cols.ozone_du, cols.temperature_k, co2_ppmv, options.rayleigh, options.ozone,
+            options.ozone_temperature_dependence, nullptr};
+  for (const spectrum::Bin& b : grid.bins()) key.centres.push_back(b.center_nm);
+  const auto same = [&](const Entry& e) {
+    return e.centres == key.centres && e.air == key.air && e.ozone == key.ozone && e.temperature == key.temperature &&
+           e.co2 == key.co2 && e.rayleigh == key.rayleigh && e.ozone_on == key.ozone_on && e.ozone_t == key.ozone_t;
+  };
+  {
+    std::lock_guard<std::mutex> lock(mutex);
+    for (const Entry& e : entries)
+      if (same(e)) return e.optics;
+  }
+  const std::size_t nb = grid.size(), nl = cols.air.size();
+  auto c = std::make_shared<ClearOptics>();
+  c->rayleigh.assign(nb * nl, 0.0);
+  c->ozone.assign(nb * nl, 0.0);
+  for (std::size_t b = 0; b < nb; ++b) {
+    const double lam = grid.bins()[b].center_nm;
+    const double sigma_r = options.rayleigh ? rayleigh_cross_section(lam, co2_ppmv) : 0.0;
+    const double sigma_o3 = options.ozone ? ozone_cross_section(lam) : 0.0;
+    for (std::size_t l = 0; l < nl; ++l) {
+      c->rayleigh[b * nl + l] = sigma_r * cols.air[l];
+      if (options.ozone) {
+        const double s = options.ozone_temperature_dependence ? ozone_cross_section(lam, cols.temperature_k[l]) : sigma_o3;
+        c->ozone[b * nl + l] = s * cols.ozone_du[l] * atmos::kDobsonUnit;
+      }
+    }
+  }
+  key.optics = std::move(c);
+  std::lock_guard<std::mutex> lock(mutex);
+  entries.push_back(std::move(key));
+  if (entries.size() > kKeep) entries.erase(entries.begin());
+  return entries.back().optics;
+}
+
 }  // namespace
 
 ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::Grid& grid,
@@ -123,22 +178,16 @@ ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::
   o.rayleigh_fraction.assign(o.n_layers * np, 0.0);
   // Per bin: Rayleigh, ozone and aerosol optics, the same for every k-term of the bin.
   const std::size_t nb = grid.size(), nl = o.n_layers;
-  std::vector<double> tr(nb * nl), to(nb * nl), ta(nb * nl), wa(nb), ga(nb);
+  const std::shared_ptr<const ClearOptics> clear = cached_clear_optics(grid, cols, p.co2_ppmv, options);
+  const std::vector<double>& tr = clear->rayleigh;
+  const std::vector<double>& to = clear->ozone;
+  std::vector<double> ta(nb * nl), wa(nb), ga(nb);
   for (std::size_t b = 0; b < nb; ++b) {
     const double lam = grid.bins()[b].center_nm;
-    const double sigma_r = options.rayleigh ? rayleigh_cross_section(lam, p.co2_ppmv) : 0.0;
-    const double sigma_o3 = options.ozone ? ozone_cross_section(lam) : 0.0;
     const double tau_a = options.aerosol ? aerosol.column_tau(lam) : 0.0;
     wa[b] = aerosol.omega_at(lam);
     ga[b] = aerosol.g_at(lam);
-    for (std::size_t l = 0; l < nl; ++l) {
-      tr[b * nl + l] = sigma_r * cols.air[l];
-      if (options.ozone) {
-        const double s = options.ozone_temperature_dependence ? ozone_cross_section(lam, cols.temperature_k[l]) : sigma_o3;
-        to[b * nl + l] = s * cols.ozone_du[l] * atmos::kDobsonUnit;
-      }
-      ta[b * nl + l] = tau_a * share[l];
-    }
+    for (std::size_t l = 0; l < nl; ++l) ta[b * nl + l] = tau_a * share[l];
   }
   for (std::size_t k = 0; k < np; ++k) {
     const std::size_t b = gp.points[k].bin;

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdlib>
 #include <cstdio>
 #include <numbers>
 #include <stdexcept>
@@ -105,7 +106,7 @@ UtcTime parse_iso8601(std::string_view s) {
     bad_time(s, "the UTC offset is missing: add Z or e.g. -07:00");
   }
   if (i != s.size()) bad_time(s, "unexpected text after the offset");
-  return {unix_seconds(year, month, day, hour, minute, second) - offset};
+  return {unix_seconds(year, month, day, hour, minute, second) - offset, static_cast<int>(std::lround(offset / 60.0))};
 }
 
 std::string format_iso8601_utc(const UtcTime& t) {
@@ -127,6 +128,16 @@ std::string format_iso8601_utc(const UtcTime& t) {
   std::snprintf(buf, sizeof buf, "%04ld-%02u-%02uT%02d:%02d:%02dZ", y, m, d, static_cast<int>(rest / 3600),
                 static_cast<int>((rest / 60) % 60), static_cast<int>(rest % 60));
   return buf;
+}
+
+std::string format_iso8601_local(double unix_s, int utc_offset_minutes) {
+  std::string local = format_iso8601_utc({unix_s + 60.0 * utc_offset_minutes});
+  if (utc_offset_minutes == 0) return local;
+  local.pop_back();  // the 'Z'
+  const int a = std::abs(utc_offset_minutes);
+  char buf[16];
+  std::snprintf(buf, sizeof buf, "%c%02d:%02d", utc_offset_minutes < 0 ? '-' : '+', a / 60, a % 60);
+  return local + buf;
 }
 
 SolarPosition solar_position(const Site& site, const UtcTime& t) {

@@ -9,6 +9,7 @@ namespace solstrata::sun {
 /// An instant in UTC.
 struct UtcTime {
   double unix_seconds = 0.0;  ///< s: seconds since 1970-01-01T00:00:00Z (no leap seconds, as POSIX)
+  int utc_offset_minutes = 0; ///< min: the UTC offset the time was written with (east positive)
   /// d: Julian day (UT) of the instant, unix_seconds / 86400 + 2440587.5
   [[nodiscard]] double julian_day() const { return unix_seconds / 86400.0 + 2440587.5; }
 };
@@ -24,6 +25,9 @@ UtcTime parse_iso8601(std::string_view text);
 
 /// "YYYY-MM-DDTHH:MM:SSZ" of an instant (seconds rounded to the nearest whole second).
 std::string format_iso8601_utc(const UtcTime& t);
+
+/// "YYYY-MM-DDTHH:MM:SS+HH:MM" of an instant in local time at `utc_offset_minutes` ("Z" for 0).
+std::string format_iso8601_local(double unix_seconds, int utc_offset_minutes);
 
 /// Where the observer is and the air that refracts the sun's light.
 struct Site {

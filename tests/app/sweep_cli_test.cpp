@@ -205,3 +205,77 @@ sweep:
   const auto complete = solstrata::io::read_variable(dir() / "long.h5", "scenario_complete");
   CHECK(std::all_of(complete.values.begin(), complete.values.end(), [](double v) { return v == 1; }));
 }
+
+namespace {
+
+/// A two-day hourly series at an invented site over a cheap column, with daily totals and a plane.
+const char* kSeries = R"(site: {latitude_deg: 47.3, longitude_deg: 8.6}
+times: {start: "2026-06-15T00:00:00+02:00", end: "2026-06-16T23:00:00+02:00", step_minutes: 60}
+atmosphere: {ozone_column_du: 300, precipitable_water_cm: 1.5}
+aerosol: {type: continental_moderate, optical_depth: 0.15}
+surface: {albedo: 0.2}
+plane_of_array: {tilt_deg: 30, azimuth_deg: 180}
+spectrum:
+  bins: [{from_nm: 300, to_nm: 400, step_nm: 25}, {from_nm: 400, to_nm: 1000, step_nm: 100}, {from_nm: 1000, to_nm: 3000, step_nm: 500}]
+  bands: [{name: uv, from_nm: 300, to_nm: 400}, {name: visible, from_nm: 400, to_nm: 700}, {name: infrared, from_nm: 700, to_nm: 3000}]
+)";
+
+}  // namespace
+
+TEST_CASE("a time series writes a CF time axis, night flags and daily totals", "[app][sweep][series]") {
+  std::ofstream(dir() / "series.yaml") << kSeries;
+  REQUIRE(sh("run series.yaml -o series.h5 --csv series.csv -q").code == 0);
+  const fs::path f = dir() / "series.h5";
+  const auto time = solstrata::io::read_variable(f, "time");
+  REQUIRE(time.values.size() == 48);
+  // CF time: seconds since the POSIX epoch; 2026-06-15T00:00+02:00 is 2026-06-14T22:00Z.
+  CHECK(solstrata::io::text_attribute(time.attributes, "units") == "seconds since 1970-01-01 00:00:00");
+  CHECK(solstrata::io::text_attribute(time.attributes, "calendar") == "proleptic_gregorian");
+  CHECK(time.values[0] == 1781474400.0);  // date -u -d 2026-06-14T22:00:00Z +%s
+  CHECK(time.values[47] - time.values[0] == 47 * 3600.0);
+  const auto ghi = solstrata::io::read_variable(f, "global_horizontal_irradiance");
+  const auto up = solstrata::io::read_variable(f, "sun_above_horizon");
+  const auto zen = solstrata::io::read_variable(f, "solar_zenith_angle");
+  REQUIRE(ghi.dimensions == std::vector<std::string>{"time"});
+  for (std::size_t i = 0; i < 48; ++i) {
+    INFO("step " << i);
+    CHECK((up.values[i] == 1.0) == (zen.values[i] < 90.0));
+    if (up.values[i] == 0.0) CHECK(ghi.values[i] == 0.0);
+    else CHECK(ghi.values[i] > 0.0);
+  }
+  // Local midnight and noon: dark, then the highest sun of the day.
+  CHECK(up.values[0] == 0.0);
+  CHECK(up.values[13] == 1.0);
+  // Daily totals on their own dimension; global = direct + diffuse (same nodes), and the hourly
+  // trapezoidal sum of the steps comes within 1 % of the converged daily total.
+  const auto daily = solstrata::io::read_variable(f, "daily_global_horizontal");
+  const auto dir_h = solstrata::io::read_variable(f, "daily_direct_horizontal");
+  const auto dif_h = solstrata::io::read_variable(f, "daily_diffuse_horizontal");
+  const auto toa = solstrata::io::read_variable(f, "daily_toa_horizontal");
+  REQUIRE(daily.values.size() == 2);
+  CHECK(solstrata::io::text_attribute(daily.attributes, "units") == "MJ m-2 day-1");
+  for (std::size_t d = 0; d < 2; ++d) {
+    CHECK(daily.values[d] == Approx(dir_h.values[d] + dif_h.values[d]).epsilon(1e-12));
+    double hourly = 0.0;
+    for (std::size_t i = 24 * d; i < 24 * d + 23; ++i) hourly += 1800.0 * (ghi.values[i] + ghi.values[i + 1]);
+    CHECK(hourly / 1e6 == Approx(daily.values[d]).epsilon(0.01));
+    CHECK(daily.values[d] < toa.values[d]);
+  }
+  // The CSV: one row per step with its local time.
+  std::ifstream csv(dir() / "series.csv");
+  std::string header, first;
+  std::getline(csv, header);
+  std::getline(csv, first);
+  CHECK(header.rfind("local_time,solar_zenith_angle_degree", 0) == 0);
+  CHECK(header.find("plane_global_irradiance_W_m-2") != std::string::npos);
+  CHECK(first.rfind("2026-06-15T00:00:00+02:00,", 0) == 0);
+}
+
+TEST_CASE("a time series killed with SIGKILL resumes to the same file", "[app][sweep][series]") {
+  std::ofstream(dir() / "series.yaml") << kSeries;
+  if (!fs::exists(dir() / "series.h5")) REQUIRE(sh("run series.yaml -o series.h5 -q").code == 0);
+  CHECK(sh("run series.yaml -o series_resumed.h5 -j 2 -q", "SOLSTRATA_TEST_KILL_AFTER=20").code != 0);
+  REQUIRE(fs::exists(dir() / "series_resumed.h5.partial"));
+  REQUIRE(sh("run series.yaml -o series_resumed.h5 -j 2 -q --resume").code == 0);
+  same_content(dir() / "series.h5", dir() / "series_resumed.h5");
+}

@@ -98,3 +98,30 @@ TEST_CASE("profile validation names the field, the level and the rule", "[atmos]
   CHECK(p.validate().find("at least 2 levels") != std::string::npos);
   CHECK_THROWS_AS(layer_columns(p), std::invalid_argument);
 }
+
+TEST_CASE("cutting a profile at a site elevation interpolates an isothermal column exactly", "[atmos]") {
+  // Exact limit: an isothermal atmosphere in hydrostatic balance has p(z) = p0 exp(-z / H), so
+  // log-linear interpolation in altitude is exact (H = R T / (M g); any H serves here).
+  Profile p;
+  const double H = 7.9;  // km
+  for (double z : {20.0, 10.0, 5.0, 2.0, 0.0}) {
+    p.altitude_km.push_back(z);
+    p.pressure_hpa.push_back(1013.25 * std::exp(-z / H));
+    p.temperature_k.push_back(250.0);
+    p.h2o_ppmv.push_back(1000.0 + 100.0 * z);  // linear in z: linear interpolation is exact too
+  }
+  const Profile c = cut_at_altitude(p, 1.25);
+  REQUIRE(c.n_levels() == 5);
+  CHECK(c.altitude_km.back() == 1.25);
+  CHECK(c.pressure_hpa.back() == Approx(1013.25 * std::exp(-1.25 / H)).epsilon(1e-13));
+  CHECK(c.temperature_k.back() == Approx(250.0).epsilon(1e-14));
+  CHECK(c.h2o_ppmv.back() == Approx(1125.0).epsilon(1e-13));
+  CHECK(c.ozone_ppmv.empty());
+  // At an existing level (within 1 m): that level becomes the surface.
+  const Profile at = cut_at_altitude(p, 2.0004);
+  REQUIRE(at.n_levels() == 4);
+  CHECK(at.pressure_hpa.back() == p.pressure_hpa[3]);
+  // Outside the profile: a clear error.
+  CHECK_THROWS_WITH(cut_at_altitude(p, 25.0), Catch::Contains("outside the profile's altitude range"));
+  CHECK_THROWS_WITH(cut_at_altitude(p, -0.3), Catch::Contains("outside the profile's altitude range"));
+}

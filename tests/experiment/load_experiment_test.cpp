@@ -234,3 +234,10 @@ TEST_CASE("custom bins without bands get the default bands clipped to the grid",
   CHECK(u.bands[0].name == "UV-C");
   CHECK(u.bands[0].lower_nm == 260.0);
 }
+
+TEST_CASE("without a surface section the albedo is the documented default 0.2", "[experiment]") {
+  // docs/experiment-keys.md, top level: `surface` defaults to albedo 0.2 (it was 0 before).
+  const experiment::Experiment e = experiment::parse_experiment("sun: {solar_zenith_deg: 30}\n", "exp.yaml", ".");
+  CHECK(e.albedo_direct == 0.2);
+  CHECK(e.albedo_diffuse == 0.2);
+}
