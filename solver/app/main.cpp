@@ -150,9 +150,10 @@ class HelpFormatter : public CLI::Formatter {
 void setup_run(CLI::App& app, app::RunOptions& o) {
   CLI::App* run = app.add_subcommand("run",
       "run an experiment file and write its results (HDF5, optional CSV)\n\n"
-      "Runs the experiment: builds the optics of the atmosphere on the spectral grid, solves the\n"
-      "two-stream equations at every spectral point, and writes a netCDF-4/HDF5 file with level fluxes,\n"
-      "heating rates, transmittances and surface products. Prints a summary table.");
+      "Runs the experiment (one scenario, a sweep or a time series): builds the optics of the atmosphere\n"
+      "on the spectral grid, solves the two-stream equations at every spectral point, and writes a\n"
+      "netCDF-4/HDF5 file with level fluxes, heating rates, transmittances and surface products.\n"
+      "Prints a summary table.");
   run->add_option("EXPERIMENT.yaml", o.experiment, "the experiment file (keys: docs/experiment-keys.md)")
       ->required()
       ->type_name("")
