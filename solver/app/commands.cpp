@@ -9,6 +9,7 @@
 #include "app/summary_table.hpp"
 #include "experiment/experiment.hpp"
 #include "experiment/input_error.hpp"
+#include "experiment/output_variables.hpp"
 #include "experiment/run.hpp"
 #include "experiment/sweep.hpp"
 #include "experiment/sweep_run.hpp"
@@ -60,12 +61,15 @@ std::optional<experiment::Study> load_study(const std::string& file, int& rc) {
   return std::nullopt;
 }
 
-/// Progress on stderr, at most five times a second, only when stderr is a terminal.
+/// Progress on stderr, at most five times a second, only when stderr is a terminal (or when
+/// SOLSTRATA_PROGRESS=1, for tests). The rate counts the scenarios finished since `start`, the time
+/// the work on them began (not when the first result arrived, which would make the first rate
+/// one over almost nothing); it is shown once a scenario has finished.
 class Progress {
  public:
-  Progress(std::size_t total, std::size_t already, bool enabled)
-      : total_(total), done_(already), start_done_(already), enabled_(enabled && ::isatty(2)),
-        t0_(std::chrono::steady_clock::now()) {}
+  Progress(std::size_t total, std::size_t already, bool enabled,
+           std::chrono::steady_clock::time_point start = std::chrono::steady_clock::now())
+      : total_(total), done_(already), start_done_(already), enabled_(enabled && shown()), t0_(start) {}
   void step() {
     ++done_;
     if (!enabled_) return;
@@ -75,12 +79,16 @@ class Progress {
     const double secs = std::chrono::duration<double>(now - t0_).count();
     const double rate = secs > 0 ? double(done_ - start_done_) / secs : 0.0;
     const double left = rate > 0 ? double(total_ - done_) / rate : 0.0;
-    std::fprintf(stderr, "\r%zu/%zu scenarios (%.1f%%), %.1f/s, %.0f s left   ", done_, total_,
+    std::fprintf(stderr, "\r%zu/%zu scenarios (%.1f%%), %.3g/s, %.0f s left   ", done_, total_,
                  100.0 * double(done_) / double(total_), rate, left);
     if (done_ == total_) std::fprintf(stderr, "\n");
   }
 
  private:
+  static bool shown() {
+    const char* force = std::getenv("SOLSTRATA_PROGRESS");
+    return (force && std::string(force) == "1") || ::isatty(2);
+  }
   std::size_t total_, done_, start_done_;
   bool enabled_;
   std::chrono::steady_clock::time_point t0_, last_{};
@@ -147,7 +155,8 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
     std::vector<std::size_t> todo;
     for (std::size_t i = 0; i < n; ++i)
       if (!have.offsets.count(i)) todo.push_back(i);
-    Progress progress(n, n - todo.size(), !o.quiet);
+    // Scenario 0 (templ) was solved from t0 on: its time counts in the first rate.
+    Progress progress(n, n - todo.size(), !o.quiet, t0);
     if (!todo.empty() && todo.front() == 0) {
       record(templ);
       progress.step();
@@ -216,7 +225,10 @@ int check_command(const RunOptions& o) {
   try {
     const experiment::RunResult probe = experiment::run_scenario(study, 0, study.base().output.spectral).result;
     std::size_t values = 0;
-    for (const io::Field& f : io::result_fields(probe)) values += f.per_scenario ? f.values.size() * study.size() : f.values.size();
+    for (const io::Field& f : io::result_fields(probe)) {
+      if (!experiment::output_selected(study.base().output.variables, f.name)) continue;
+      values += f.per_scenario ? f.values.size() * study.size() : f.values.size();
+    }
     print_check_summary(std::cout, study.base());
     std::cout << "  scenarios:   " << study.size();
     if (study.is_time_series()) {
@@ -248,6 +260,12 @@ int run_command(const RunOptions& o) {
   if (!o.output.empty()) e.output.file = o.output;
   if (!o.csv.empty()) e.output.csv = o.csv;
   if (o.spectral) e.output.spectral = true;
+  if (e.output.spectral && e.given_optics_mode) {
+    // Given optics are solved per band: there are no wavelength bins to write.
+    std::cerr << "solstrata run: note: " << (o.spectral ? "--spectral" : "output.spectral")
+              << " has no effect with given_optics (the bands are solved as given; there are no wavelength bins); "
+                 "the file holds the band fluxes\n";
+  }
   // Every output path is checked before the first solve: a bad one fails at once, not after the work.
   for (const auto& [path, what] : {std::pair{e.output.file, "output file"}, std::pair{e.output.csv, "CSV file"}}) {
     if (path.empty()) continue;
@@ -289,6 +307,7 @@ int accuracy_command(const AccuracyOptions& o) {
   const std::string& out = o.output;
   const int streams = o.streams;
   const std::size_t sample = o.sample;
+  const unsigned jobs = o.jobs;
   const bool quiet = o.quiet;
   int rc = kExitOk;
   const std::optional<experiment::Study> study = load_study(file, rc);
@@ -300,19 +319,26 @@ int accuracy_command(const AccuracyOptions& o) {
     const std::size_t idx = k == 1 ? 0 : (j * (n - 1) + (k - 1) / 2) / (k - 1);
     if (picks.empty() || picks.back() != idx) picks.push_back(idx);
   }
-  std::vector<io::AccuracyCase> cases;
+  // The picked scenarios on the sweep's thread pool; each case lands in its own slot, so the
+  // comparison is the same with any number of threads.
+  std::vector<io::AccuracyCase> cases(picks.size());
   try {
-    for (std::size_t idx : picks) {
-      experiment::Experiment e = study->scenario(idx);
-      e.reference_solver = false;
-      io::AccuracyCase c;
-      c.scenario = idx;
-      c.two_stream = experiment::run_experiment(e);
-      e.reference_solver = true;
-      e.reference_streams = streams;
-      c.reference = experiment::run_experiment(e);
-      cases.push_back(std::move(c));
-    }
+    const auto t0 = std::chrono::steady_clock::now();
+    Progress progress(picks.size(), 0, !quiet, t0);
+    const unsigned threads = jobs ? jobs : std::max(1u, std::thread::hardware_concurrency());
+    experiment::run_parallel(
+        picks.size(), threads, nullptr,
+        [&](std::size_t slot) {
+          experiment::Experiment e = study->scenario(picks[slot]);
+          e.reference_solver = false;
+          io::AccuracyCase& c = cases[slot];
+          c.scenario = picks[slot];
+          c.two_stream = experiment::run_experiment(e);
+          e.reference_solver = true;
+          e.reference_streams = streams;
+          c.reference = experiment::run_experiment(e);
+        },
+        [&](std::size_t) { progress.step(); });
     if (!out.empty()) io::write_accuracy_file(out, study->base(), cases, streams);
   } catch (const std::exception& ex) {
     std::cerr << file << ": accuracy run failed: " << ex.what() << "\n";

@@ -32,6 +32,7 @@ struct AccuracyOptions {
   std::string output;       ///< HDF5 file of the full comparison ("" = none)
   int streams = 16;         ///< total number of reference streams (both hemispheres), even, 4 to 64
   std::size_t sample = 5;   ///< scenarios of a sweep to compare, >= 1
+  unsigned jobs = 0;        ///< worker threads (0 = the machine's cores); results do not depend on it
   bool quiet = false;       ///< no table
 };
 
@@ -39,7 +40,7 @@ struct AccuracyOptions {
 int run_command(const RunOptions& options);
 /// `solstrata check EXP.yaml`
 int check_command(const RunOptions& options);
-/// `solstrata accuracy EXP.yaml [--streams N] [--sample K] [-o OUT.h5] [--quiet]`
+/// `solstrata accuracy EXP.yaml [--streams N] [--sample K] [-j N] [-o OUT.h5] [--quiet]`
 int accuracy_command(const AccuracyOptions& options);
 
 }  // namespace solstrata::app

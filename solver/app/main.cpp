@@ -206,6 +206,11 @@ void setup_accuracy(CLI::App& app, app::AccuracyOptions& o) {
   acc->add_option("--sample", o.sample, "scenarios of a sweep to compare, 1 to 100000 (default 5)")
       ->type_name("K")
       ->check(whole_number(1, 100000, "scenarios"));
+  acc->add_option("-j,--jobs", o.jobs,
+                  "worker threads, 1 to 1024 (default: the machine's cores); the results do not\n"
+                  "depend on it")
+      ->type_name("N")
+      ->check(whole_number(1, 1024, "threads"));
   acc->add_option("-o,--output", o.output, "also write the full comparison (per band and level) as HDF5")
       ->type_name("FILE");
   acc->add_flag("-q,--quiet", o.quiet, "no table");

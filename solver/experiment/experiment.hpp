@@ -95,6 +95,9 @@ struct OutputConfig {
   std::filesystem::path file;  ///< the HDF5 file to write
   bool spectral = false;       ///< also write per-bin level fluxes
   std::filesystem::path csv;   ///< optional flat CSV summary (empty = none)
+  /// output.variables: variable names and groups to write (experiment/output_variables.hpp);
+  /// empty = everything. Coordinates and the band table are always written.
+  std::vector<std::string> variables;
 };
 
 /// Which top-of-atmosphere solar spectrum a run uses.
@@ -209,6 +212,11 @@ std::string read_experiment_text(const std::filesystem::path& path);
 Experiment parse_experiment(std::string text, const std::string& name,
                             const std::filesystem::path& base_dir, ProfileCache* profiles = nullptr,
                             std::optional<double> step_time_unix = std::nullopt);
+
+/// Sets the sun of `e` from the instant `t_unix` (s since 1970-01-01T00:00:00Z) at its site:
+/// apparent zenith (refraction at the profile's surface pressure and temperature), azimuth,
+/// Earth-Sun distance, and whether the sun is up (`e.site` must be given).
+void place_sun(Experiment& e, double t_unix);
 
 /// The most steps one time series may have (a year of 1-minute steps fits).
 inline constexpr std::size_t kMaxTimeSteps = 1'000'000;

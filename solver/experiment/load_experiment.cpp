@@ -13,7 +13,9 @@
 
 #include "atmos/humidity.hpp"
 #include "atmos/standard_atmosphere.hpp"
+#include "experiment/closest_name.hpp"
 #include "experiment/experiment.hpp"
+#include "experiment/output_variables.hpp"
 #include "experiment/yaml_reader.hpp"
 #include "spectrum/solar.hpp"
 #include "sun/position.hpp"
@@ -367,18 +369,6 @@ sun::Site refraction_site(const Experiment& e) {
   return site;
 }
 
-/// Sets the sun of `e` from the instant `t` at its site: apparent zenith, azimuth, distance.
-void place_sun(Experiment& e, double t_unix) {
-  const sun::SolarPosition pos = sun::solar_position(refraction_site(e), {t_unix});
-  e.has_sun_position = true;
-  e.time_unix_s = t_unix;
-  e.solar_azimuth_deg = pos.azimuth_deg;
-  e.solar_zenith_deg = pos.zenith_deg;
-  e.sun_up = pos.zenith_deg < 90.0;
-  e.distance.day_of_year = 0.0;
-  e.distance.factor = pos.distance_factor;
-}
-
 void read_sun(Section& s, Experiment& e, bool series, std::optional<double> step_time) {
   const bool has_zenith = s.has("solar_zenith_deg"), has_time = s.has("time");
   if (series) {
@@ -689,6 +679,9 @@ void read_spectrum(Section& s, Experiment& e, const fs::path& base) {
     spectrum_range range;
     try {
       range = table_range(e.solar_file, e.solar_column);
+    } catch (const spectrum::SpectrumColumnError& ex) {
+      // At the column value, or at solar_spectrum when no column is given.
+      throw sol->error("column", std::string(ex.what()) + (e.solar_column.empty() ? " with the 'column' key" : ""));
     } catch (const std::exception& ex) {
       throw doc.error(file, ex.what());
     }
@@ -714,6 +707,39 @@ std::vector<GivenLayer> read_given_layers(Section& s) {
     layers.push_back(g);
   }
   return layers;
+}
+
+/// output.variables: a list of variable names and groups (experiment/output_variables.hpp).
+/// Spectral variables need the per-bin output: they turn it on unless `spectral: false` is given.
+void read_output_variables(Section& o, OutputConfig& out, const Located<bool>* spectral) {
+  const Document doc = o.document();
+  const std::vector<Located<std::string>> names = o.string_list("variables");
+  if (names.empty()) throw o.error("variables", "give at least one variable or group name, or leave the key out to write everything");
+  for (const Located<std::string>& n : names) {
+    if (!is_output_name(n.value)) {
+      std::string groups, variables;
+      std::vector<std::string> all;
+      for (std::string_view g : kOutputGroups) {
+        groups += (groups.empty() ? "" : ", ") + std::string(g);
+        all.emplace_back(g);
+      }
+      for (const OutputVariable& v : kOutputVariables) {
+        variables += (variables.empty() ? "" : ", ") + std::string(v.name);
+        all.emplace_back(v.name);
+      }
+      const std::string near = closest_name(n.value, all);
+      throw doc.error(n, "unknown output variable or group '" + n.value + "'" +
+                             (near.empty() ? std::string() : " (did you mean '" + near + "'?)") +
+                             "; allowed groups: " + groups + "; allowed variables: " + variables);
+    }
+    if (output_group(n.value) == "spectral" || n.value == "spectral") {
+      if (spectral && !spectral->value) {
+        throw doc.error(n, "'" + n.value + "' needs the per-bin output, but output.spectral is false; remove one of them");
+      }
+      out.spectral = true;
+    }
+    out.variables.push_back(n.value);
+  }
 }
 
 void read_given_optics(Section& s, Experiment& e) {
@@ -872,7 +898,8 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
   }
   {
     if (series && !root.has("sun")) {
-      place_sun(e, step_time.value_or(e.series.times_unix.front()));
+      // Not value_or: its argument is evaluated even when a step time is given, and a step has no times.
+      place_sun(e, step_time ? *step_time : e.series.times_unix.front());
     } else {
       Section s = root.subsection("sun");
       read_sun(s, e, series, step_time);
@@ -893,14 +920,28 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
     e.output.file = stem.string() + ".h5";
     if (auto o = root.optional_subsection("output")) {
       e.output.file = o->optional_string("file", e.output.file.string()).value;
-      e.output.spectral = o->optional_bool("spectral", false).value;
+      const bool spectral_given = o->has("spectral");
+      const Located<bool> spectral = o->optional_bool("spectral", false);
+      e.output.spectral = spectral.value;
       e.output.csv = o->optional_string("csv", "").value;
+      if (o->has("variables")) read_output_variables(*o, e.output, spectral_given ? &spectral : nullptr);
       o->check_no_unknown_keys();
     }
   }
   (void)root.has("sweep");  // read by Study (experiment/sweep.hpp)
   root.check_no_unknown_keys();
   return e;
+}
+
+void place_sun(Experiment& e, double t_unix) {
+  const sun::SolarPosition pos = sun::solar_position(refraction_site(e), {t_unix});
+  e.has_sun_position = true;
+  e.time_unix_s = t_unix;
+  e.solar_azimuth_deg = pos.azimuth_deg;
+  e.solar_zenith_deg = pos.zenith_deg;
+  e.sun_up = pos.zenith_deg < 90.0;
+  e.distance.day_of_year = 0.0;
+  e.distance.factor = pos.distance_factor;
 }
 
 fs::path default_data_dir() {

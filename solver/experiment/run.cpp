@@ -6,6 +6,7 @@
 #include <mutex>
 #include <numbers>
 #include <stdexcept>
+#include <utility>
 
 #include "optics/column_optics.hpp"
 #include "optics/h2o_lacis_hansen.hpp"
@@ -226,15 +227,15 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
     gas_lines.push_back(std::move(line));
     oo.gas_tables.push_back(std::move(t));
   }
-  const optics::ColumnOptics co = optics::build_column_optics(e.profile, grid, e.aerosol, oo);
+  optics::ColumnOptics co = optics::build_column_optics(e.profile, grid, e.aerosol, oo);
 
   Problems p;
   p.n = co.n_points;
   p.nl = co.n_layers;
-  p.tau = co.tau;
-  p.omega = co.omega;
-  p.g = co.g;
-  p.rayleigh_fraction = co.rayleigh_fraction;
+  p.tau = std::move(co.tau);
+  p.omega = std::move(co.omega);
+  p.g = std::move(co.g);
+  p.rayleigh_fraction = std::move(co.rayleigh_fraction);
   if (e.spherical_beam) {
     // Pseudo-spherical direct beam: each layer's geometric slant factor in a spherical shell
     // (sun::layer_slant_factors), the same for every spectral point.
@@ -282,7 +283,7 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
   // Points of each bin, and bins of each band.
   std::vector<std::vector<std::size_t>> bin_points(grid.size());
   for (std::size_t q = 0; q < p.n; ++q) bin_points[co.point_bin[q]].push_back(q);
-  std::vector<std::vector<std::size_t>> band_points(r.n_bands), all(1);
+  std::vector<std::vector<std::size_t>> band_points(r.n_bands);
   for (std::size_t b = 0; b < r.n_bands; ++b) {
     const spectrum::Band& band = grid.bands()[b];
     r.band_names.push_back(band.name);
@@ -292,11 +293,31 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
     for (std::size_t i = br.first; i < br.last; ++i)
       band_points[b].insert(band_points[b].end(), bin_points[i].begin(), bin_points[i].end());
   }
-  for (std::size_t q = 0; q < p.n; ++q) all[0].push_back(q);
-  aggregate(f, p.n, r.n_levels, band_points, r.band_direct_down, r.band_diffuse_down, r.band_diffuse_up);
-  aggregate(f, p.n, r.n_levels, all, r.direct_down, r.diffuse_down, r.diffuse_up);
+  // Points to bins in one pass; bands and broadband then from the bins (sums over a few hundred
+  // bins instead of every point again).
   std::vector<double> bdir, bdif, bup;
   aggregate(f, p.n, r.n_levels, bin_points, bdir, bdif, bup);
+  const std::size_t nlev = r.n_levels;
+  const auto from_bins = [&](const std::vector<double>& per_bin, std::size_t first, std::size_t last, double* out) {
+    for (std::size_t lev = 0; lev < nlev; ++lev) out[lev] = 0.0;
+    for (std::size_t i = first; i < last; ++i)
+      for (std::size_t lev = 0; lev < nlev; ++lev) out[lev] += per_bin[i * nlev + lev];
+  };
+  r.band_direct_down.assign(r.n_bands * nlev, 0.0);
+  r.band_diffuse_down.assign(r.n_bands * nlev, 0.0);
+  r.band_diffuse_up.assign(r.n_bands * nlev, 0.0);
+  for (std::size_t b = 0; b < r.n_bands; ++b) {
+    const spectrum::BinRange br = grid.band_bins(b);
+    from_bins(bdir, br.first, br.last, r.band_direct_down.data() + b * nlev);
+    from_bins(bdif, br.first, br.last, r.band_diffuse_down.data() + b * nlev);
+    from_bins(bup, br.first, br.last, r.band_diffuse_up.data() + b * nlev);
+  }
+  r.direct_down.assign(nlev, 0.0);
+  r.diffuse_down.assign(nlev, 0.0);
+  r.diffuse_up.assign(nlev, 0.0);
+  from_bins(bdir, 0, grid.size(), r.direct_down.data());
+  from_bins(bdif, 0, grid.size(), r.diffuse_down.data());
+  from_bins(bup, 0, grid.size(), r.diffuse_up.data());
   r.bin_toa_normal.assign(grid.size(), 0.0);
   for (std::size_t q = 0; q < p.n; ++q) {
     r.bin_toa_normal[co.point_bin[q]] += p.solar[q];

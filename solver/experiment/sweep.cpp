@@ -11,6 +11,8 @@
 #include <yaml-cpp/yaml.h>
 
 #include "experiment/yaml_reader.hpp"
+#include "atmos/profile.hpp"
+#include "optics/aerosol.hpp"
 #include "sun/daily.hpp"
 #include "sun/tilted_plane.hpp"
 
@@ -131,6 +133,81 @@ std::string format_value(double v) {
   return os.str();
 }
 
+/// A key that sweeps and per-step inputs can set on the typed experiment directly, without the
+/// YAML round trip: its rule (the loader's range for the key) and what it sets. The loader is the
+/// reference: tests/experiment/sweep_test.cpp checks that both paths give the same results.
+struct TypedKey {
+  const char* path;
+  const char* name;  ///< the key's last part, for the rule's text
+  Range range;
+  void (*set)(Experiment&, double);
+};
+const TypedKey kTypedKeys[] = {
+    {"sun.solar_zenith_deg", "solar_zenith_deg", Range::closed_open(0.0, 90.0), [](Experiment& e, double v) { e.solar_zenith_deg = v; }},
+    {"surface.albedo", "albedo", Range::closed(0.0, 1.0), [](Experiment& e, double v) { e.albedo_direct = e.albedo_diffuse = v; }},
+    {"surface.albedo_direct", "albedo_direct", Range::closed(0.0, 1.0), [](Experiment& e, double v) { e.albedo_direct = v; }},
+    {"surface.albedo_diffuse", "albedo_diffuse", Range::closed(0.0, 1.0), [](Experiment& e, double v) { e.albedo_diffuse = v; }},
+    {"aerosol.optical_depth", "optical_depth", Range::closed(0.0, 50.0), [](Experiment& e, double v) { e.aerosol.tau_ref = v; }},
+    {"aerosol.single_scattering_albedo", "single_scattering_albedo", Range::closed(0.0, 1.0), [](Experiment& e, double v) { e.aerosol.omega = v; }},
+    {"aerosol.asymmetry_parameter", "asymmetry_parameter", Range::open(-1.0, 1.0), [](Experiment& e, double v) { e.aerosol.g = v; }},
+    {"aerosol.angstrom_exponent", "angstrom_exponent", Range::closed(-1.0, 4.0), [](Experiment& e, double v) { e.aerosol.angstrom = v; }},
+    {"atmosphere.ozone_column_du", "ozone_column_du", Range::open_closed(0.0, 1000.0), [](Experiment& e, double v) { e.optics.total_ozone_du = v; }},
+};
+
+const TypedKey* typed_key(const std::string& path) {
+  for (const TypedKey& k : kTypedKeys)
+    if (path == k.path) return &k;
+  return nullptr;
+}
+
+/// Whether `path` can be set typed on `base`, read from the file `root`: the key is in the table,
+/// and nothing else in the file changes what it means (a separate direct/diffuse albedo, an
+/// aerosol spectral table or two-wavelength form, a zenith from a time, a profile without ozone).
+bool typed_usable(const std::string& path, const Experiment& base, const YAML::Node& root) {
+  if (!typed_key(path) || !root.IsMap()) return false;
+  // A missing key of a const node reads as an invalid node: IsDefined() first (it never throws).
+  const auto is_map = [&](const char* section) {
+    const YAML::Node sec = root[section];
+    return sec.IsDefined() && sec.IsMap();
+  };
+  const auto has = [&](const char* section, const char* key) {
+    if (!is_map(section)) return false;
+    const YAML::Node sec = root[section];
+    return sec[key].IsDefined();
+  };
+  const bool aerosol = is_map("aerosol") && !base.given_optics_mode;
+  if (path == "sun.solar_zenith_deg") return !base.has_sun_position && !base.series.given;
+  if (path == "surface.albedo") return !has("surface", "albedo_direct") && !has("surface", "albedo_diffuse");
+  if (path == "aerosol.optical_depth") return aerosol;
+  if (path == "aerosol.single_scattering_albedo" || path == "aerosol.asymmetry_parameter") {
+    return aerosol && !has("aerosol", "spectral_table");
+  }
+  if (path == "aerosol.angstrom_exponent") {
+    return aerosol && !has("aerosol", "second_wavelength_nm") && !has("aerosol", "second_optical_depth");
+  }
+  if (path == "atmosphere.ozone_column_du") return !base.given_optics_mode && atmos::total_ozone_du(base.profile) > 0.0;
+  return true;
+}
+
+/// Applies typed values to a copy of `base`. False when the result fails a cross-check the loader
+/// makes (the aerosol's own rules): the caller then takes the YAML path, whose error names it.
+bool apply_typed(Experiment& e, const std::vector<std::pair<std::string, double>>& values) {
+  bool aerosol = false;
+  for (const auto& [path, v] : values) {
+    typed_key(path)->set(e, v);
+    aerosol = aerosol || path.rfind("aerosol.", 0) == 0;
+  }
+  if (aerosol) {
+    if (!e.aerosol.validate().empty()) return false;
+    try {
+      (void)optics::layer_fractions(e.aerosol, e.profile);
+    } catch (const std::exception&) {
+      return false;
+    }
+  }
+  return true;
+}
+
 /// The steps and daily-total nodes of a time series.
 TimePlan make_time_plan(const Experiment& base) {
   const TimeSeriesSpec& ts = base.series;
@@ -238,6 +315,10 @@ struct Study::Impl {
   YAML::Node root;  // the file without its sweep section
   std::shared_ptr<Document> doc;
   std::unique_ptr<ProfileCache> profiles = std::make_unique<ProfileCache>();
+  /// every swept parameter (or per-step input) is set typed on the base experiment (kTypedKeys);
+  /// false: each scenario is the file with its values written in, read like a file of its own
+  bool typed = false;
+  Experiment lite;  ///< the base experiment without its series: what typed cases copy
 };
 
 Study::Study() : impl_(std::make_unique<Impl>()) {}
@@ -362,12 +443,53 @@ Study Study::parse(std::string text, const std::string& name, const fs::path& ba
   }
   s.impl_->root = YAML::Load(text);
   if (s.impl_->root.IsMap()) s.impl_->root.remove("sweep");
+  // Typed patches: when every swept key (or per-step input) is one the study can set directly,
+  // scenarios are copies of the base experiment with the values set, each value checked once here
+  // against its key's rule; otherwise every scenario goes through the loader.
+  {
+    std::vector<std::string> paths;
+    for (const SweepParameter* p : s.plan_.parameters()) paths.push_back(p->path);
+    for (const std::string& p : s.base_.series.input_paths) paths.push_back(p);
+    bool typed = true;
+    for (const std::string& p : paths) typed = typed && typed_usable(p, s.base_, s.impl_->root);
+    if (typed) {
+      for (const SweepParameter* p : s.plan_.parameters()) {
+        const TypedKey& k = *typed_key(p->path);
+        for (double v : p->values) {
+          if (!k.range.contains(v)) {
+            throw s.impl_->doc->error(p->mark, "sweep", "value " + format_number(v) + " of '" + p->path +
+                                                           "' is outside its allowed range: " + k.range.describe(k.name));
+          }
+        }
+      }
+      const TimeSeriesSpec& ts = s.base_.series;
+      for (std::size_t c = 0; c < ts.input_paths.size(); ++c) {
+        const TypedKey& k = *typed_key(ts.input_paths[c]);
+        for (std::size_t i = 0; i < ts.inputs[c].size(); ++i) {
+          const double v = ts.inputs[c][i];
+          if (!std::isnan(v) && !k.range.contains(v)) {
+            throw InputError(ts.inputs_file.string(), {ts.inputs_line[i], 1}, ts.input_paths[c],
+                             "step " + std::to_string(i) + " (" + ts.times_text[i] + "): value " + format_number(v) +
+                                 " is outside its allowed range: " + k.range.describe(k.name));
+          }
+        }
+      }
+    }
+    s.impl_->typed = typed;
+    s.impl_->lite = s.base_;
+    s.impl_->lite.series = {};  // the study holds the series; each case is one instant
+  }
   return s;
 }
 
 Experiment Study::scenario(std::size_t i) const {
   if (plan_.time_series) return time_step(i);
   if (plan_.axes.empty()) return parse_experiment(impl_->text, impl_->name, impl_->base_dir);
+  if (impl_->typed) {
+    Experiment e = impl_->lite;
+    if (apply_typed(e, plan_.assignment(i))) return e;
+    // A cross-check failed: the loader gives the message.
+  }
   YAML::Node n = YAML::Clone(impl_->root);
   const auto assign = plan_.assignment(i);
   for (const auto& [path, value] : assign) {
@@ -408,6 +530,13 @@ Experiment Study::time_step(std::size_t i) const {
   const auto at_row = [&](const std::string& key, const std::string& msg) {
     return InputError(ts.inputs_file.string(), {ts.inputs_line.empty() ? 0 : ts.inputs_line[row], 1}, key, msg);
   };
+  if (impl_->typed) {
+    Experiment e = impl_->lite;
+    if (apply_typed(e, assign)) {
+      place_sun(e, t);
+      return e;
+    }
+  }
   if (assign.empty()) {
     Experiment e = parse_experiment(impl_->text, impl_->name, impl_->base_dir, impl_->profiles.get(), t);
     return e;
@@ -426,6 +555,15 @@ Experiment Study::time_step(std::size_t i) const {
 }
 
 std::string Study::aerosol_free_key(std::size_t i) const {
+  if (impl_->typed && !plan_.time_series) {
+    // The values of the swept keys that are not the aerosol's identify the aerosol-free case.
+    std::string key = "typed";
+    for (const auto& [path, value] : plan_.assignment(i)) {
+      if (path.rfind("aerosol.", 0) == 0) continue;
+      key += "\n" + path + "=" + format_number(value);
+    }
+    return key;
+  }
   YAML::Node n = YAML::Clone(impl_->root);
   for (const auto& [path, value] : plan_.assignment(i)) (void)set_path(n, path, value);
   if (n.IsMap()) n.remove("aerosol");
@@ -433,9 +571,26 @@ std::string Study::aerosol_free_key(std::size_t i) const {
 }
 
 Experiment Study::aerosol_free(std::size_t i) const {
+  if (impl_->typed && !plan_.time_series) {
+    // As the loader reads a file without its aerosol section: the default (empty) aerosol.
+    Experiment e = impl_->lite;
+    std::vector<std::pair<std::string, double>> rest;
+    for (const auto& pv : plan_.assignment(i))
+      if (pv.first.rfind("aerosol.", 0) != 0) rest.push_back(pv);
+    e.aerosol = optics::AerosolSpec{};
+    e.aerosol.tau_ref = 0.0;
+    e.aerosol_type.clear();
+    if (apply_typed(e, rest)) return e;
+  }
   Experiment e = parse_experiment(aerosol_free_key(i), impl_->name, impl_->base_dir, impl_->profiles.get());
   e.text = impl_->text;
   return e;
+}
+
+bool Study::typed_patches() const { return impl_->typed; }
+
+void Study::use_typed_patches(bool on) {
+  if (!on) impl_->typed = false;
 }
 
 bool Study::has_aerosol() const {

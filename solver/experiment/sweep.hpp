@@ -103,6 +103,11 @@ class Study {
   [[nodiscard]] bool is_time_series() const { return plan_.time_series; }
   /// Checks every scenario (throws InputError at the first bad one).
   void validate_all() const;
+  /// Whether scenarios are the base experiment with typed values set (every swept key one the
+  /// study can set directly), rather than the file re-read with the values written in.
+  [[nodiscard]] bool typed_patches() const;
+  /// For tests: false sends every scenario through the loader (the reference path).
+  void use_typed_patches(bool on);
 
  private:
   Study();

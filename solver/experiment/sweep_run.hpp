@@ -45,6 +45,16 @@ struct SweepOptions {
 std::size_t run_scenarios(const Study& study, const std::vector<std::size_t>& todo, const SweepOptions& options,
                           const std::function<void(ScenarioResult&&)>& on_done);
 
+/// The thread pool under run_scenarios, for other batches of independent work: runs work(k) for
+/// k = 0..count-1 on `threads` threads (dynamic scheduling from an atomic counter) and calls
+/// on_done(k) on the calling thread as each item finishes, in completion order. work(k) should
+/// write only its own slot k of the caller's storage; on_done(k) may read it. Stops handing out
+/// items once *stop is set (null: never). Returns the number of on_done calls; rethrows the first
+/// exception of a worker or of on_done.
+std::size_t run_parallel(std::size_t count, unsigned threads, const std::atomic<bool>* stop,
+                         const std::function<void(std::size_t)>& work,
+                         const std::function<void(std::size_t)>& on_done);
+
 /// One scenario (and its aerosol-free companion when the study has aerosol), single-threaded.
 ScenarioResult run_scenario(const Study& study, std::size_t index, bool spectral);
 

@@ -347,6 +347,24 @@ void Hdf5Writer::add_coordinate(const std::string& name, std::span<const double>
   });
 }
 
+void Hdf5Writer::add_coordinate(const std::string& name, std::span<const std::string> values,
+                                const VariableAttributes& attributes) {
+  if (values.empty()) impl_->fail(name, "a coordinate needs at least 1 value");
+  impl_->check_attributes(name, attributes, false);
+  impl_->claim_name(name);
+  impl_->guarded(name, "write the coordinate", [&] {
+    std::vector<const char*> pointers;
+    for (const std::string& v : values) pointers.push_back(v.c_str());
+    const H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
+    const hsize_t n = values.size();
+    H5::DataSet ds = impl_->file->createDataSet(name, type, H5::DataSpace(1, &n), Impl::creation_list());
+    ds.write(pointers.data(), type);
+    impl_->make_scale(ds, name, name);
+    impl_->write_standard_attributes(ds, attributes);
+    impl_->dimensions.push_back({name, n, false, true, ds});
+  });
+}
+
 std::size_t Hdf5Writer::dimension_size(const std::string& name) const {
   return impl_->dimensions[impl_->dimension_index("", name)].size;
 }

@@ -57,6 +57,9 @@ class Hdf5Writer {
   /// A dimension with a coordinate variable of the same name holding `values` (its size).
   void add_coordinate(const std::string& name, std::span<const double> values,
                       const VariableAttributes& attributes);
+  /// A dimension with a text coordinate variable (netCDF string) holding `values`, e.g. labels.
+  void add_coordinate(const std::string& name, std::span<const std::string> values,
+                      const VariableAttributes& attributes);
   /// A dimension that starts with 0 points and grows as rows are written (netCDF "unlimited").
   void add_growing_dimension(const std::string& name);
   /// Size of a dimension (current size for a growing one).

@@ -22,7 +22,13 @@ struct Field {
   std::vector<std::pair<std::string, std::string>> notes;  ///< extra text attributes
   bool per_scenario = true;       ///< varies between the scenarios of a sweep
   bool on_levels = false;         ///< has the level dimension: gets coordinates="level_pressure"
+  bool has_fill = false;          ///< may hold kFillValue for "not stated": gets _FillValue
 };
+
+/// netCDF's default fill value for doubles (NC_FILL_DOUBLE, from memory: 9.9692099683868690e+36),
+/// written where a value is missing or not stated; variables that can hold it say so in
+/// `_FillValue` and `missing_value`.
+inline constexpr double kFillValue = 9.9692099683868690e+36;
 
 /// Dimension sizes of a result: level, layer, band, and wavelength (0 without spectral output).
 struct ResultDims {

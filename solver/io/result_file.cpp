@@ -3,6 +3,7 @@
 
 #include <chrono>
 #include <ctime>
+#include <variant>
 #include <vector>
 
 #include "io/csv_writer.hpp"
@@ -11,12 +12,26 @@
 #include "io/result_file_detail.hpp"
 #include "io/result_fields.hpp"
 #include "io/sweep_file.hpp"
+#include "experiment/output_variables.hpp"
 #include "version.hpp"
 
 namespace solstrata::io {
 namespace {
 
 using experiment::RunResult;
+
+/// The quality column of the CSV summaries: "ok", or the notes that qualify the values, joined by
+/// ';' (approximate_solar_spectrum: the built-in Planck spectrum, PAR and UV index indicative;
+/// h2o_broadband: the built-in water-vapour table, spectral detail in the near infrared approximate).
+std::string quality_flags(bool solar_approximate, bool h2o_broadband) {
+  std::string q;
+  if (solar_approximate) q = "approximate_solar_spectrum";
+  if (h2o_broadband) q += std::string(q.empty() ? "" : ";") + "h2o_broadband";
+  return q.empty() ? "ok" : q;
+}
+
+/// The caution column of the CSV summaries (the same text as the files' global "caution").
+std::string caution_text() { return std::string(experiment::kSolarCaution) + " " + experiment::kUvCaution; }
 
 }  // namespace
 using detail::add_result_dimensions;
@@ -74,11 +89,31 @@ void write_global_attributes(Hdf5Writer& w, const experiment::Experiment& e, con
 namespace detail {
 void add_result_dimensions(Hdf5Writer& w, const RunResult& r) {
   const ResultDims d = result_dims(r);
-  w.add_dimension("level", d.level);
-  w.add_dimension("layer", d.layer);
-  w.add_dimension("band", d.band);
+  w.add_dimension("nv", 2);  // the two edges of a cell, for CF bounds variables
+  if (r.level_pressure_hpa.size() == d.level && d.layer + 1 == d.level) {
+    // Coordinate variables in pressure, so that readers index levels and layers by pressure.
+    const std::vector<double>& p = r.level_pressure_hpa;
+    w.add_coordinate("level", p, {"hPa", "air pressure at the level (level 0 = top of atmosphere)", "air_pressure"});
+    w.set_attribute("level", "positive", "down");
+    w.set_attribute("level", "axis", "Z");
+    std::vector<double> mid(d.layer), bounds(2 * d.layer);
+    for (std::size_t l = 0; l < d.layer; ++l) {
+      mid[l] = 0.5 * (p[l] + p[l + 1]);
+      bounds[2 * l] = p[l];
+      bounds[2 * l + 1] = p[l + 1];
+    }
+    w.add_coordinate("layer", mid, {"hPa", "air pressure in the middle of the layer (mean of its two level pressures)", "air_pressure"});
+    w.set_attribute("layer", "positive", "down");
+    w.set_attribute("layer", "bounds", "layer_bounds");
+    w.write("layer_bounds", {"layer", "nv"}, bounds, {"hPa", "air pressure at the top and at the bottom of the layer", ""});
+  } else {
+    w.add_dimension("level", d.level);
+    w.add_dimension("layer", d.layer);
+  }
+  w.add_coordinate("band", std::span<const std::string>(r.band_names), {"", "name of the reporting band", ""});
   if (d.wavelength > 0) {
     w.add_coordinate("wavelength", r.bin_center_nm, {"nm", "centre wavelength of the spectral bin", "radiation_wavelength"});
+    w.set_attribute("wavelength", "bounds", "wavelength_bounds");
   }
 }
 }  // namespace detail
@@ -86,6 +121,10 @@ void add_result_dimensions(Hdf5Writer& w, const RunResult& r) {
 namespace detail {
 void set_field_attributes(Hdf5Writer& w, const Field& f) {
   for (const auto& [k, v] : f.notes) w.set_attribute(f.name, k, v);
+  if (f.has_fill) {
+    w.set_attribute(f.name, "_FillValue", kFillValue);
+    w.set_attribute(f.name, "missing_value", kFillValue);
+  }
 }
 }  // namespace detail
 
@@ -94,6 +133,7 @@ void write_result_file(const std::filesystem::path& path, const experiment::Expe
   Hdf5Writer w(path);
   add_result_dimensions(w, r);
   for (const Field& f : result_fields(r)) {
+    if (!experiment::output_selected(e.output.variables, f.name)) continue;
     const VariableAttributes a{f.units, f.long_name, f.standard_name};
     if (!f.texts.empty()) {
       w.write(f.name, f.dims, std::span<const std::string>(f.texts), a);
@@ -156,7 +196,8 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
                       const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
                       const CheckpointContents& contents, bool partial) {
   // netCDF's default fill value for doubles (NC_FILL_DOUBLE): readers show it as missing.
-  constexpr double kFill = 9.9692099683868690e+36;
+  constexpr double kFill = kFillValue;
+  const std::vector<std::string>& chosen = study.base().output.variables;
   const std::size_t n = study.size();
   if (study.is_time_series()) {
     write_time_series_file(path, study, templ, checkpoint, contents, partial);
@@ -187,10 +228,11 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
 
   // The same for every scenario: band table, bins.
   for (const Field& f : fields) {
-    if (f.per_scenario) continue;
+    if (f.per_scenario || !experiment::output_selected(chosen, f.name)) continue;
     const VariableAttributes a{f.units, f.long_name, f.standard_name};
     if (!f.texts.empty()) w.write(f.name, f.dims, std::span<const std::string>(f.texts), a);
     else w.write(f.name, f.dims, std::span<const double>(f.values), a);
+    set_field_attributes(w, f);
   }
 
   // Per-scenario variables: small ones gathered and written whole, large ones row by row.
@@ -199,13 +241,15 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     std::size_t offset, size;
     bool rows;
     std::vector<double> buffer;
+    bool keep;  // written (chosen by output.variables); the record holds every variable anyway
   };
   std::vector<Slot> slots;
   std::size_t offset = 0;
   constexpr std::size_t kRowThreshold = 2048;
   for (const Field& f : fields) {
     if (!f.per_scenario || !f.texts.empty()) continue;
-    slots.push_back({&f, offset, f.values.size(), f.values.size() > kRowThreshold, {}});
+    slots.push_back({&f, offset, f.values.size(), f.values.size() > kRowThreshold, {},
+                     experiment::output_selected(chosen, f.name)});
     offset += f.values.size();
   }
   if (offset + (with_effect ? 3 : 0) != contents.header.record_values) {
@@ -217,6 +261,7 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     return d;
   };
   for (Slot& s : slots) {
+    if (!s.keep) continue;
     if (s.rows) w.define_rows(s.f->name, dims_of(*s.f), {s.f->units, s.f->long_name, s.f->standard_name});
     else s.buffer.reserve(s.size * n);
   }
@@ -227,12 +272,13 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     if (it == contents.offsets.end()) {
       if (!partial) throw OutputError(checkpoint.string() + ": scenario " + std::to_string(i) + " is missing");
       for (Slot& s : slots)
-        if (!s.rows) s.buffer.insert(s.buffer.end(), s.size, kFill);
+        if (s.keep && !s.rows) s.buffer.insert(s.buffer.end(), s.size, kFill);
       continue;
     }
     complete[i] = 1;
     const std::vector<double> rec = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
     for (Slot& s : slots) {
+      if (!s.keep) continue;
       const std::span<const double> part(rec.data() + s.offset, s.size);
       if (s.rows) w.write_row(s.f->name, i, part);
       else s.buffer.insert(s.buffer.end(), part.begin(), part.end());
@@ -244,6 +290,7 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     }
   }
   for (Slot& s : slots) {
+    if (!s.keep) continue;
     if (!s.rows) w.write(s.f->name, dims_of(*s.f), s.buffer, {s.f->units, s.f->long_name, s.f->standard_name});
     const std::string c = coords + (s.f->on_levels ? " level_pressure" : "");
     if (!c.empty()) w.set_attribute(s.f->name, "coordinates", c);
@@ -253,14 +300,22 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     w.set_attribute(s.f->name, "missing_value", kFill);
   }
   if (with_effect) {
-    const char* sign = " (net downward flux with aerosol minus without; negative = the aerosol cools, positive = it warms)";
-    w.write("aerosol_effect_toa", {"scenario"}, toa, {"W m-2", std::string("instantaneous aerosol radiative effect at the top of the atmosphere") + sign, ""});
-    w.write("aerosol_effect_surface", {"scenario"}, sfc, {"W m-2", std::string("instantaneous aerosol radiative effect at the surface") + sign, ""});
-    w.write("aerosol_effect_atmosphere", {"scenario"}, atm, {"W m-2", "instantaneous aerosol radiative effect in the atmosphere (TOA effect minus surface effect; positive = aerosol heats the air)", ""});
-    for (const char* v : {"aerosol_effect_toa", "aerosol_effect_surface", "aerosol_effect_atmosphere"}) {
-      if (!coords.empty()) w.set_attribute(v, "coordinates", coords);
-      w.set_attribute(v, "_FillValue", kFill);
-      w.set_attribute(v, "missing_value", kFill);
+    const std::string sign = " (net downward flux with aerosol minus without; negative = the aerosol cools, positive = it warms)";
+    const struct {
+      const char* name;
+      const std::vector<double>* values;
+      std::string long_name;
+    } effects[] = {
+        {"aerosol_effect_toa", &toa, "instantaneous aerosol radiative effect at the top of the atmosphere" + sign},
+        {"aerosol_effect_surface", &sfc, "instantaneous aerosol radiative effect at the surface" + sign},
+        {"aerosol_effect_atmosphere", &atm, "instantaneous aerosol radiative effect in the atmosphere (TOA effect minus surface effect; positive = aerosol heats the air)"},
+    };
+    for (const auto& x : effects) {
+      if (!experiment::output_selected(chosen, x.name)) continue;
+      w.write(x.name, {"scenario"}, *x.values, {"W m-2", x.long_name, ""});
+      if (!coords.empty()) w.set_attribute(x.name, "coordinates", coords);
+      w.set_attribute(x.name, "_FillValue", kFill);
+      w.set_attribute(x.name, "missing_value", kFill);
     }
   }
   w.write("scenario_complete", {"scenario"}, std::span<const int>(complete),
@@ -304,7 +359,7 @@ void write_sweep_summary_csv(const std::filesystem::path& sweep_file, const std:
   }
   const std::vector<std::string> present = list_datasets(sweep_file);
   for (const char* v : {"global_horizontal_irradiance", "direct_normal_irradiance", "diffuse_horizontal_irradiance",
-                        "toa_flux_up", "planetary_albedo", "absorbed_atmosphere", "par_photon", "uv_index",
+                        "toa_flux_up", "planetary_albedo", "absorbed_atmosphere", "par_energy", "par_photon", "uv_index",
                         "aerosol_effect_toa", "aerosol_effect_surface", "aerosol_effect_atmosphere"}) {
     if (std::find(present.begin(), present.end(), v) == present.end()) continue;
     const StoredVariable sv = read_variable(sweep_file, v);
@@ -319,10 +374,23 @@ void write_sweep_summary_csv(const std::filesystem::path& sweep_file, const std:
   for (std::string& h : header) {
     for (char& c : h) if (c == ' ') c = '_';
   }
+  header.push_back("quality");
+  header.push_back("caution");
+  const auto globals = read_global_attributes(sweep_file);
+  const auto flag = [&](const char* name) {
+    const auto it = globals.find(name);
+    if (it == globals.end()) return false;
+    const auto* v = std::get_if<std::vector<double>>(&it->second);
+    return v == nullptr || v->empty() || v->front() != 0;
+  };
+  const std::string quality = quality_flags(flag("solar_spectrum_approximate"), globals.count("water_vapour_note") > 0);
+  const std::vector<double> complete = read_variable(sweep_file, "scenario_complete").values;
   CsvTable t(header);
   for (std::size_t i = 0; i < study.size(); ++i) {
-    std::vector<double> row{static_cast<double>(i)};
-    for (const auto& c : columns) row.push_back(c[i]);
+    std::vector<std::string> row{csv_number(static_cast<double>(i))};
+    for (const auto& c : columns) row.push_back(csv_number(c[i]));
+    row.push_back(i < complete.size() && complete[i] == 0 ? std::string("still_to_run") : quality);
+    row.push_back(caution_text());
     t.add_row(row);
   }
   t.write(csv);
@@ -331,11 +399,23 @@ void write_sweep_summary_csv(const std::filesystem::path& sweep_file, const std:
 void write_summary_csv(const std::filesystem::path& path, const RunResult& r) {
   CsvTable t({"band", "lower_nm", "upper_nm", "toa_down_W_m-2", "surface_direct_W_m-2",
               "surface_diffuse_W_m-2", "surface_global_W_m-2", "transmittance", "absorbed_atmosphere_W_m-2",
-              "toa_up_W_m-2"});
-  for (const experiment::BandSummary& x : experiment::band_summary(r)) {
-    t.add_row({x.name, csv_number(x.lower_nm), csv_number(x.upper_nm), csv_number(x.toa_down),
+              "toa_up_W_m-2", "direct_normal_W_m-2", "par_W_m-2", "par_umol_m-2_s-1", "uv_index", "quality",
+              "caution"});
+  const std::string quality = quality_flags(r.solar_approximate, r.h2o_broadband), caution = caution_text();
+  const std::vector<experiment::BandSummary> rows = experiment::band_summary(r);
+  for (const experiment::BandSummary& x : rows) {
+    // Band edges not stated (given optics) are empty cells; PAR and UV index are broadband
+    // products (empty in the band rows, and without wavelength bins).
+    const bool bb = &x == &rows.back();
+    const auto edge = [&](double v) { return v > 0.0 ? csv_number(v) : std::string(); };
+    // DNI of the band: its direct flux on a horizontal surface over cos(zenith).
+    const std::string dni = bb ? csv_number(r.direct_normal) : r.mu0 > 0.0 ? csv_number(x.surface_direct / r.mu0) : std::string();
+    const bool products = bb && r.has_spectral_products;
+    t.add_row({x.name, edge(x.lower_nm), edge(x.upper_nm), csv_number(x.toa_down),
                csv_number(x.surface_direct), csv_number(x.surface_diffuse), csv_number(x.surface_global),
-               csv_number(x.transmittance), csv_number(x.absorbed_atmosphere), csv_number(x.toa_up)});
+               csv_number(x.transmittance), csv_number(x.absorbed_atmosphere), csv_number(x.toa_up), dni,
+               products ? csv_number(r.par_w_m2) : std::string(), products ? csv_number(r.par_umol_m2_s) : std::string(),
+               products ? csv_number(r.uv_index) : std::string(), quality, caution});
   }
   t.write(path);
 }

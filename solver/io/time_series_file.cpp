@@ -6,6 +6,7 @@
 #include <string>
 #include <vector>
 
+#include "experiment/output_variables.hpp"
 #include "io/csv_writer.hpp"
 #include "io/hdf5_reader.hpp"
 #include "io/hdf5_writer.hpp"
@@ -93,7 +94,7 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
   }
 
   for (const Field& f : fields) {
-    if (f.per_scenario) continue;
+    if (f.per_scenario || !experiment::output_selected(base.output.variables, f.name)) continue;
     const VariableAttributes a{f.units, f.long_name, f.standard_name};
     if (!f.texts.empty()) w.write(f.name, f.dims, std::span<const std::string>(f.texts), a);
     else w.write(f.name, f.dims, std::span<const double>(f.values), a);
@@ -130,7 +131,9 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
     const std::vector<double> rec = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
     for (Slot& s : slots) s.buffer.insert(s.buffer.end(), rec.begin() + long(s.offset), rec.begin() + long(s.offset + s.size));
   }
+  const std::vector<std::string>& chosen = base.output.variables;
   for (Slot& s : slots) {
+    if (!experiment::output_selected(chosen, s.f->name)) continue;  // in the record, not written
     std::vector<std::string> dims{"time"};
     dims.insert(dims.end(), s.f->dims.begin(), s.f->dims.end());
     w.write(s.f->name, dims, s.buffer, {s.f->units, s.f->long_name, s.f->standard_name});

@@ -194,23 +194,37 @@ ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::
     o.point_bin.push_back(b);
     o.point_weight.push_back(gp.points[k].weight);
     o.wavelength_nm.push_back(grid.bins()[b].center_nm);
-    for (std::size_t l = 0; l < nl; ++l) {
-      OpticsMixer mix;
-      mix.add_rayleigh(tr[b * nl + l]);
-      o.column_tau_rayleigh[k] += tr[b * nl + l];
-      mix.add_absorber(to[b * nl + l]);
-      o.column_tau_ozone[k] += to[b * nl + l];
-      const double tg = gp.tau[l * np + k];
-      mix.add_absorber(tg);
-      o.column_tau_gas[k] += tg;
-      mix.add(ta[b * nl + l], wa[b], ga[b]);
-      o.column_tau_aerosol[k] += ta[b * nl + l];
-      const LayerOptics r = mix.result();
-      o.tau[l * np + k] = r.tau;
-      o.omega[l * np + k] = r.omega;
-      o.g[l * np + k] = r.g;
-      const double scat = tr[b * nl + l] + ta[b * nl + l] * wa[b];
-      o.rayleigh_fraction[l * np + k] = scat > 0.0 ? std::min(1.0, tr[b * nl + l] / scat) : 0.0;
+  }
+  // Mixing (the arithmetic of OpticsMixer, written out so that the loop over points vectorises:
+  // layer outermost, every store contiguous). Order of the sums as in OpticsMixer: Rayleigh,
+  // ozone, gas, aerosol.
+  constexpr double kMaxG = 1.0 - 1e-12;  // OpticsMixer's bound on |g|
+  const std::size_t* __restrict bin = o.point_bin.data();
+  for (std::size_t l = 0; l < nl; ++l) {
+    const double* __restrict tg_row = gp.tau.data() + l * np;
+    double* __restrict tau = o.tau.data() + l * np;
+    double* __restrict om = o.omega.data() + l * np;
+    double* __restrict gg = o.g.data() + l * np;
+    double* __restrict rf = o.rayleigh_fraction.data() + l * np;
+    double* __restrict ctr = o.column_tau_rayleigh.data();
+    double* __restrict cto = o.column_tau_ozone.data();
+    double* __restrict ctg = o.column_tau_gas.data();
+    double* __restrict cta = o.column_tau_aerosol.data();
+    for (std::size_t k = 0; k < np; ++k) {
+      const std::size_t b = bin[k];
+      const double r = tr[b * nl + l], oz = to[b * nl + l], tg = tg_row[k], a = ta[b * nl + l];
+      const double w = wa[b], g = ga[b];
+      const double t = ((r + oz) + tg) + a;
+      const double scat = r + w * a;
+      const double scat_g = g * w * a;
+      tau[k] = t;
+      om[k] = t > 0.0 ? std::clamp(scat / t, 0.0, 1.0) : 0.0;
+      gg[k] = scat > 0.0 ? std::clamp(scat_g / scat, -kMaxG, kMaxG) : 0.0;
+      rf[k] = scat > 0.0 ? std::min(1.0, r / scat) : 0.0;
+      ctr[k] += r;
+      cto[k] += oz;
+      ctg[k] += tg;
+      cta[k] += a;
     }
   }
   return o;

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <sstream>
 #include <stdexcept>
 
@@ -365,6 +366,31 @@ std::string describe(const char* name, std::size_t index, double value, const ch
   return os.str();
 }
 
+/// Whether lo <= x[i] (lo < x[i] when kLoOpen) and x[i] <= hi (< hi when kHiOpen) for all i:
+/// NaN fails every comparison. Counting the failures keeps the loop branch-free so it vectorises.
+template <bool kLoOpen, bool kHiOpen>
+bool within(std::span<const double> v, double lo, double hi) {
+  const double* __restrict x = v.data();
+  const std::size_t n = v.size();
+  std::size_t bad = 0;
+  for (std::size_t i = 0; i < n; ++i) {
+    const bool above = kLoOpen ? x[i] > lo : x[i] >= lo;
+    const bool below = kHiOpen ? x[i] < hi : x[i] <= hi;
+    bad += (above && below) ? 0 : 1;
+  }
+  return bad == 0;
+}
+
+/// Whether every input of a correctly sized batch is in range (the rules of validate()).
+bool all_in_range(const ColumnBatch& in) {
+  constexpr double kInf = std::numeric_limits<double>::infinity();
+  return within<false, true>(in.tau, 0.0, kInf) && within<false, false>(in.omega, 0.0, 1.0) &&
+         within<true, true>(in.g, -1.0, 1.0) && within<true, false>(in.mu0, 0.0, 1.0) &&
+         within<false, true>(in.solar, 0.0, kInf) && within<false, false>(in.albedo_direct, 0.0, 1.0) &&
+         within<false, false>(in.albedo_diffuse, 0.0, 1.0) && within<false, true>(in.beam_path, 1.0, kInf) &&
+         within<false, false>(in.rayleigh_fraction, 0.0, 1.0);
+}
+
 }  // namespace
 
 std::string SolverOptions::validate() const {
@@ -431,6 +457,9 @@ Status validate(const ColumnBatch& in, const LevelFluxes& out) {
   if (!in.rayleigh_fraction.empty()) {
     if (auto m = size_is(in.rayleigh_fraction, nl * np, "rayleigh_fraction"); !m.empty()) return {false, m};
   }
+  // Fast pass: one vectorisable sweep that only says whether everything is in range (no early
+  // exit, no message); only when it fails do the loops below look for the first offender.
+  if (all_in_range(in)) return {};
   for (std::size_t i = 0; i < in.beam_path.size(); ++i) {
     if (!(in.beam_path[i] >= 1.0 && std::isfinite(in.beam_path[i]))) return {false, describe("beam_path", i, in.beam_path[i], "1 <= beam_path < inf")};
   }

@@ -117,8 +117,8 @@ TabulatedSpectrum read_spectrum_csv(const std::string& path, std::string_view co
     if (header.size() != 2) {
       std::string names;
       for (std::size_t i = 1; i < header.size(); ++i) names += (i > 1 ? ", " : "") + header[i];
-      throw std::runtime_error(path + ": the file has " + std::to_string(header.size() - 1) +
-                               " irradiance columns (" + names + "); choose one by name or number");
+      throw SpectrumColumnError(path + ": the file has " + std::to_string(header.size() - 1) +
+                                " irradiance columns (" + names + "); choose one by name or number");
     }
     col = 1;
   } else {
@@ -135,8 +135,8 @@ TabulatedSpectrum read_spectrum_csv(const std::string& path, std::string_view co
     if (col == 0) {
       std::string names;
       for (std::size_t i = 1; i < header.size(); ++i) names += (i > 1 ? ", " : "") + header[i];
-      throw std::runtime_error(path + ": no irradiance column '" + want + "' (columns: " + names +
-                               "; or a number 1.." + std::to_string(header.size() - 1) + ")");
+      throw SpectrumColumnError(path + ": no irradiance column '" + want + "' (columns: " + names +
+                                "; or a number 1.." + std::to_string(header.size() - 1) + ")");
     }
   }
   TabulatedSpectrum s;

@@ -2,6 +2,7 @@
 #pragma once
 
 #include <optional>
+#include <stdexcept>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -27,11 +28,19 @@ struct TabulatedSpectrum {
   [[nodiscard]] std::string validate() const;
 };
 
+/// The irradiance column of a spectrum file cannot be told: several columns and none chosen, or
+/// the chosen one does not exist. The message names the file and the columns it has.
+class SpectrumColumnError : public std::runtime_error {
+ public:
+  using std::runtime_error::runtime_error;
+};
+
 /// Reads a CSV spectrum: one header line of column names, then rows of numbers separated by
 /// commas; the first column is the wavelength in nm, the others spectral irradiance in
 /// W m-2 nm-1. `column` picks the irradiance column by header name, or by 1-based position among
 /// the data columns ("1", "2", ...); empty picks the only data column (an error when there are
-/// several). Lines that are empty or start with '#' are skipped. Throws std::runtime_error naming
+/// several: SpectrumColumnError, as for an unknown column). Lines that are empty or start with '#'
+/// are skipped. Throws std::runtime_error naming
 /// the file and line on any problem (missing file, unknown column, bad number, non-increasing
 /// wavelength, negative irradiance).
 TabulatedSpectrum read_spectrum_csv(const std::string& path, std::string_view column = {});

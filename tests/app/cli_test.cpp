@@ -92,7 +92,8 @@ TEST_CASE("every subcommand's --help names its arguments, all of its options and
       {"run", {"EXPERIMENT.yaml", "-o,--output FILE", "--csv FILE", "--spectral", "-j,--jobs N", "--resume",
                "-q,--quiet", "-h,--help"}},
       {"check", {"EXPERIMENT.yaml", "-h,--help"}},
-      {"accuracy", {"EXPERIMENT.yaml", "--streams N", "--sample K", "-o,--output FILE", "-q,--quiet", "-h,--help"}},
+      {"accuracy", {"EXPERIMENT.yaml", "--streams N", "--sample K", "-j,--jobs N", "-o,--output FILE", "-q,--quiet",
+                    "-h,--help"}},
       {"demo", {"--sza DEG", "--albedo A", "--closure NAME", "-h,--help"}},
   };
   const Outcome top = run("--help");
@@ -141,7 +142,7 @@ TEST_CASE("an option value may follow an equals sign or come as the next argumen
   CHECK(run("run eq.yaml -oeq.h5 -j1 -q").code == 0);
   CHECK(fs::exists(workdir() / "eq.h5"));
   fs::remove(workdir() / "eq.h5");
-  const Outcome acc = run("accuracy eq.yaml --streams=4 --sample=1");
+  const Outcome acc = run("accuracy eq.yaml --streams=4 --sample=1 --jobs=1");
   INFO(acc.err);
   CHECK(acc.code == 0);
   CHECK_THAT(acc.out, Catch::Contains("4-stream reference"));
@@ -167,6 +168,7 @@ TEST_CASE("bad option values are refused in one style, with exit code 2 and noth
       {"accuracy", "typed.yaml --streams 7", {"--streams", "even", "4 to 64", "got '7'"}},
       {"accuracy", "typed.yaml --streams=66", {"--streams", "got '66'"}},
       {"accuracy", "typed.yaml --sample 0", {"--sample", "1 to 100000"}},
+      {"accuracy", "typed.yaml -j 0", {"--jobs", "1 to 1024", "got '0'"}},
       {"demo", "--sza 95", {"--sza", "0 <= DEG < 90 (in degrees)", "got '95'"}},
       {"demo", "--sza=-5", {"--sza", "got '-5'"}},
       {"demo", "--sza nan", {"--sza", "got 'nan'"}},
@@ -267,6 +269,10 @@ TEST_CASE("bad experiment files are refused with a pointed message, exit code 2 
       {"top_is_list", "- sun\n- surface\n", "mapping", 0},
       {"shape", sun + "aerosol:\n  optical_depth: 0.1\n  vertical:\n    shape: gaussian\n", "exponential", 6},
       {"layer_weights", sun + "aerosol:\n  optical_depth: 0.1\n  vertical:\n    shape: per_layer\n    layer_weights: [1, 2]\n", "one weight per layer", 7},
+      {"output_variable", sun + "output:\n  variables: [broadband, flux_upp]\n", "did you mean 'flux_up'", 4},
+      {"output_variable_list", sun + "output:\n  variables: [nonsense]\n", "allowed groups: broadband, bands, layers, spectral, products, sun", 4},
+      {"output_variables_empty", sun + "output:\n  variables: []\n", "at least one", 4},
+      {"output_spectral_off", sun + "output:\n  spectral: false\n  variables: [spectral_flux_up]\n", "output.spectral is false", 5},
   };
   REQUIRE(cases.size() >= 25);
   for (const Bad& b : cases) {
@@ -286,6 +292,40 @@ TEST_CASE("bad experiment files are refused with a pointed message, exit code 2 
   CHECK(o.code == 2);
   CHECK(o.err.find("missing.yaml") != std::string::npos);
   CHECK(leftovers().empty());
+}
+
+TEST_CASE("a solar spectrum file with several columns and none chosen is an input error at the column key", "[app]") {
+  // Two irradiance columns and no `column`: which one is meant cannot be guessed.
+  std::ofstream(workdir() / "spectrum.csv") << "wavelength_nm,first,second\n100,1,2\n10000,1,2\n";
+  const std::string yaml = "sun:\n  solar_zenith_deg: 30\nspectrum:\n  solar_spectrum:\n    file: spectrum.csv\n";
+  std::ofstream(workdir() / "two_columns.yaml") << yaml;
+  const Outcome o = run("run two_columns.yaml -o out.h5");
+  INFO(o.err);
+  CHECK(o.code == 2);
+  CHECK(o.err.find("two_columns.yaml:4:") != std::string::npos);
+  CHECK(o.err.find("spectrum.solar_spectrum.column") != std::string::npos);
+  CHECK(o.err.find("spectrum.csv") != std::string::npos);
+  CHECK(o.err.find("first, second") != std::string::npos);
+  CHECK(leftovers().empty());
+  CHECK(run("check two_columns.yaml").code == 2);
+  // Naming the column runs.
+  std::ofstream(workdir() / "one_column.yaml") << yaml << "    column: second\n";
+  const Outcome ok = run("run one_column.yaml -o picked.h5 --quiet");
+  INFO(ok.err);
+  CHECK(ok.code == 0);
+  fs::remove(workdir() / "picked.h5");
+}
+
+TEST_CASE("the option --spectral with given optics says on stderr that it has no effect", "[app]") {
+  std::ofstream(workdir() / "given.yaml") << "sun:\n  solar_zenith_deg: 30\ngiven_optics:\n  solar_irradiance_w_m2: 1000\n"
+                                             "  layers:\n    - {optical_depth: 0.5, single_scattering_albedo: 0.9}\n";
+  const Outcome with = run("run given.yaml -o given.h5 --spectral --quiet");
+  CHECK(with.code == 0);
+  CHECK(with.err.find("--spectral has no effect with given_optics") != std::string::npos);
+  const Outcome without = run("run given.yaml -o given.h5 --quiet");
+  CHECK(without.code == 0);
+  CHECK(without.err.find("no effect") == std::string::npos);
+  fs::remove(workdir() / "given.h5");
 }
 
 TEST_CASE("accuracy compares the closure with the reference and writes the comparison", "[app]") {

@@ -206,6 +206,113 @@ sweep:
   CHECK(std::all_of(complete.values.begin(), complete.values.end(), [](double v) { return v == 1; }));
 }
 
+TEST_CASE("a sweep file writes only the chosen variables, with the coordinates, and its CSV carries the products",
+          "[app][sweep]") {
+  // A small sweep over keys of several units (DU, degree, 1), products and one layer variable.
+  std::ofstream(dir() / "chosen.yaml") << R"(atmosphere: {ozone_column_du: 300}
+aerosol: {type: continental_moderate, optical_depth: 0.2}
+sun: {solar_zenith_deg: 30}
+spectrum:
+  bins: [{from_nm: 290, to_nm: 400, step_nm: 10}, {from_nm: 400, to_nm: 2000, step_nm: 100}]
+  bands: [{name: uv, from_nm: 290, to_nm: 400}, {name: rest, from_nm: 400, to_nm: 2000}]
+output:
+  variables: [products, heating_rate]
+  csv: chosen.csv
+sweep:
+  grid:
+    - {parameter: atmosphere.ozone_column_du, values: [250, 350]}
+    - {parameter: sun.solar_zenith_deg, values: [20, 60]}
+)";
+  const Outcome o = sh("run chosen.yaml -o chosen.h5 -j 1");
+  INFO(o.err);
+  REQUIRE(o.code == 0);
+  const auto names = solstrata::io::list_datasets(dir() / "chosen.h5");
+  const auto has = [&](const char* n) { return std::find(names.begin(), names.end(), n) != names.end(); };
+  for (const char* n : {"global_horizontal_irradiance", "uv_index", "par_photon", "aerosol_effect_toa", "heating_rate",
+                        "level", "layer", "layer_bounds", "band", "band_lower", "scenario_complete",
+                        "atmosphere_ozone_column_du"}) {
+    INFO(n);
+    CHECK(has(n));
+  }
+  for (const char* n : {"flux_up", "band_flux_up", "absorbed", "solar_zenith_angle", "spectral_flux_up"}) {
+    INFO(n);
+    CHECK_FALSE(has(n));
+  }
+  // Every units string of the sweep file parses with udunits2 (Debian udunits-bin).
+  if (std::system("command -v udunits2 > /dev/null 2>&1") == 0) {
+    for (const std::string& n : names) {
+      const auto v = solstrata::io::read_variable(dir() / "chosen.h5", n);
+      if (v.attributes.count("units") == 0) continue;
+      const std::string u = solstrata::io::text_attribute(v.attributes, "units");
+      INFO(n << ": " << u);
+      CHECK(std::system(("udunits2 -H '" + u + "' -W '' < /dev/null > /dev/null 2>&1").c_str()) == 0);
+    }
+  } else if (std::getenv("CI") != nullptr) {
+    FAIL("udunits2 not found in CI (scripts/setup installs udunits-bin)");
+  }
+  std::ifstream csv(dir() / "chosen.csv");
+  std::string header, row;
+  std::getline(csv, header);
+  std::getline(csv, row);
+  for (const char* c : {"direct_normal_irradiance_W_m-2", "par_energy_W_m-2", "par_photon_umol_m-2_s-1", "uv_index_1",
+                        "quality", "caution"}) {
+    INFO(header);
+    CHECK(header.find(c) != std::string::npos);
+  }
+  // Built-in water vapour: the broadband representation is flagged (kH2oBroadbandNote).
+  CHECK(row.find(",h2o_broadband,") != std::string::npos);
+  CHECK(row.find("not medical advice") != std::string::npos);
+}
+
+namespace {
+/// The rates (scenarios per second) of the progress lines on stderr ("\r3/8 scenarios (37.5%), 2.1/s, ...").
+std::vector<double> progress_rates(const std::string& err) {
+  std::vector<double> rates;
+  for (std::size_t at = err.find("scenarios ("); at != std::string::npos; at = err.find("scenarios (", at + 1)) {
+    const std::size_t comma = err.find("), ", at);
+    if (comma == std::string::npos) break;
+    rates.push_back(std::stod(err.substr(comma + 3)));
+  }
+  return rates;
+}
+}  // namespace
+
+TEST_CASE("the first progress rate counts the time of the first scenario", "[app][sweep]") {
+  // Before, the clock started after scenario 0 was solved, so the first tick showed one scenario
+  // over almost no time (a rate thousands of times too high). Now the first rate is of the same
+  // order as the final mean rate (both scenarios per second of the same run, one thread).
+  std::ofstream(dir() / "progress.yaml") << kSweep;
+  const Outcome o = sh("run progress.yaml -o progress.h5 -j 1", "SOLSTRATA_PROGRESS=1");
+  REQUIRE(o.code == 0);
+  const std::vector<double> rates = progress_rates(o.err);
+  INFO(o.err);
+  REQUIRE(rates.size() >= 2);
+  CHECK(rates.front() > 0.0);
+  CHECK(rates.front() < 20.0 * rates.back());
+}
+
+TEST_CASE("accuracy runs its cases on the thread pool: the same file with one thread or two, and progress",
+          "[app][sweep]") {
+  // Small on purpose (no gas k-terms, 6 bins, 4 streams): the reference solver is slow.
+  std::ofstream(dir() / "acc.yaml") << R"(sun: {solar_zenith_deg: 30}
+atmosphere: {absorbers: {h2o: none, o2: none}}
+spectrum:
+  bins: [{from_nm: 300, to_nm: 400, step_nm: 50}, {from_nm: 400, to_nm: 2000, step_nm: 400}]
+  bands: [{name: uv, from_nm: 300, to_nm: 400}, {name: rest, from_nm: 400, to_nm: 2000}]
+sweep:
+  grid:
+    - {parameter: sun.solar_zenith_deg, values: [10, 40, 70]}
+)";
+  const Outcome one = sh("accuracy acc.yaml --sample 3 --streams 4 -j 1 -o acc1.h5", "SOLSTRATA_PROGRESS=1");
+  const Outcome two = sh("accuracy acc.yaml --sample 3 --streams 4 -j 2 -o acc2.h5");
+  INFO(one.err << two.err);
+  REQUIRE(one.code == 0);
+  REQUIRE(two.code == 0);
+  same_content(dir() / "acc1.h5", dir() / "acc2.h5");
+  CHECK(one.err.find("3/3 scenarios (100.0%)") != std::string::npos);
+  CHECK(progress_rates(one.err).size() >= 1);
+}
+
 namespace {
 
 /// A two-day hourly series at an invented site over a cheap column, with daily totals and a plane.

@@ -141,8 +141,13 @@ TEST_CASE("bad site, time and series input is refused with its position", "[expe
   CHECK_THAT(error_of(kGiven + site + "times: {inputs_file: bad_inputs.csv}\n"), Catch::Contains("cannot be given per step"));
   // A per-step value out of its key's range: file, line and key.
   std::ofstream(csv) << "time,surface.albedo\n2026-06-15T10:00Z,0.2\n2026-06-15T11:00Z,1.7\n";
-  const Study bad = Study::parse(kGiven + site + "times: {inputs_file: bad_inputs.csv}\n", "series.yaml", temp_dir());
-  CHECK_THROWS_WITH(bad.validate_all(), Catch::Contains("bad_inputs.csv:3:") && Catch::Contains("surface.albedo"));
+  // (Checked when the study is read, or by validate_all for keys the loader must judge.)
+  CHECK_THROWS_WITH(Study::parse(kGiven + site + "times: {inputs_file: bad_inputs.csv}\n", "series.yaml", temp_dir()).validate_all(),
+                    Catch::Contains("bad_inputs.csv:3:") && Catch::Contains("surface.albedo"));
+  // A key the study cannot set typed (the loader judges each step): the same file and line.
+  std::ofstream(csv) << "time,atmosphere.precipitable_water_cm\n2026-06-15T10:00Z,2\n2026-06-15T11:00Z,40\n";
+  CHECK_THROWS_WITH(Study::parse(kAtmosphere + site + "times: {inputs_file: bad_inputs.csv}\n", "series.yaml", temp_dir()).validate_all(),
+                    Catch::Contains("bad_inputs.csv:3:") && Catch::Contains("precipitable_water_cm"));
 }
 
 TEST_CASE("a start/end/step series has its steps, local days and quadrature nodes", "[experiment][sun]") {

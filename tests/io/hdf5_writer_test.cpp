@@ -346,3 +346,26 @@ TEST_CASE("misuse of the writer is reported with the file and variable", "[io]")
   CHECK_THROWS_WITH(w.add_dimension("late", 1), Catch::Contains("writer is closed"));
   CHECK_THROWS_AS(read_variable(path, "absent_variable"), OutputError);
 }
+
+TEST_CASE("a text coordinate variable labels its dimension for netCDF-C and h5py", "[io]") {
+  TempDir dir("hdf5_text_coordinate");
+  const auto path = dir / "labels.h5";
+  {
+    Hdf5Writer w(path);
+    w.add_coordinate("band", std::span<const std::string>(kBandName), {"", "name of band", ""});
+    w.write("flux", {"band"}, std::span<const double>(kBandCentre), {"W m-2", "flux in band", ""});
+    w.commit();
+  }
+  const StoredVariable band = read_variable(path, "band");
+  CHECK(band.texts == kBandName);
+  CHECK(read_variable(path, "flux").dimensions == std::vector<std::string>{"band"});
+  if (solstrata::testing::have_program("ncdump")) {
+    // netCDF-C reads it as a string coordinate variable of its own dimension.
+    const auto dump = solstrata::testing::run_command("ncdump " + path.string());
+    REQUIRE(dump.status == 0);
+    CHECK_THAT(dump.output, Catch::Contains("band = 2 ;") && Catch::Contains("string band(band) ;") &&
+                                Catch::Contains("band = \"blue\", \"green, with comma\" ;"));
+  }
+  Hdf5Writer bad(dir / "bad.h5");
+  CHECK_THROWS_AS(bad.add_coordinate("band", std::span<const std::string>(), {"", "empty", ""}), OutputError);
+}
