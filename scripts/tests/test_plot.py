@@ -9,8 +9,10 @@ specification, ISO/IEC 15948, defines them) for a single run, a two-axis grid, a
 zip, a scenario list and a time series; the figures' texts show readable names, not key paths, and state the
 value of every swept parameter held fixed; an unknown --x, --y or --fix exits 2 and writes nothing.
 """
+import contextlib
 import importlib.machinery
 import importlib.util
+import io
 import os
 import struct
 import subprocess
@@ -160,14 +162,22 @@ class PlotTest(unittest.TestCase):
                ("list", ("--fix", "sun.solar_zenith_deg=20"), "scenario list"),
                ("single", ("--x", "aerosol.optical_depth"), "single run"),
                ("series", ("--fix", "aerosol.optical_depth=0.1"), "time series")]
+        # In one process (main() as the command calls it), to keep the test quick.
+        plot = load_plot_module()
         for name, args, message in bad:
             with self.subTest(args=args):
-                r, out, pngs = self.plot(name, *args)
-                self.assertEqual(r.returncode, 2, r.stdout + r.stderr)
-                self.assertTrue(r.stderr.startswith("plot: "), r.stderr)
-                self.assertIn(message, r.stderr)
-                self.assertEqual(pngs, [])
-        r, _, _ = self.plot("grid", "--x", "aerosol.optical_dept")
+                out = os.path.join(self.dir, "bad_" + name)
+                err = io.StringIO()
+                with contextlib.redirect_stderr(err), contextlib.redirect_stdout(io.StringIO()):
+                    code = plot.main([self.files[name], "--out", out, *args])
+                self.assertEqual(code, 2, err.getvalue())
+                self.assertTrue(err.getvalue().startswith("plot: "), err.getvalue())
+                self.assertIn(message, err.getvalue())
+                self.assertEqual(os.listdir(out) if os.path.isdir(out) else [], [])
+        # And as a command: exit code 2, with a suggestion and the list of swept parameters.
+        r, _, pngs = self.plot("grid", "--x", "aerosol.optical_dept")
+        self.assertEqual(r.returncode, 2)
+        self.assertEqual(pngs, [])
         self.assertIn("did you mean aerosol.optical_depth", r.stderr)
         self.assertIn("swept: aerosol.optical_depth, sun.solar_zenith_deg, surface.albedo", r.stderr)
 
