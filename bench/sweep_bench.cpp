@@ -21,13 +21,15 @@ using namespace solstrata;
 int main(int argc, char** argv) {
   std::size_t side = 100;  // side x side scenarios
   bool gases = true;       // the built-in H2O and O2 tables (k-terms); --no-gases: ozone only
+  bool single = false;     // --float: the float kernel (solver.precision: float)
   for (int i = 1; i < argc; ++i) {
     if (!std::strcmp(argv[i], "--help") || !std::strcmp(argv[i], "-h")) {
-      std::printf("usage: sweep_bench [--side N] [--no-gases]\nRuns an N x N aerosol grid (default 100 x 100 = 10,000 scenarios)\n"
+      std::printf("usage: sweep_bench [--side N] [--no-gases] [--float]\nRuns an N x N aerosol grid (default 100 x 100 = 10,000 scenarios)\n"
                   "of a 60-layer column on the default grid with 1 and 2 threads.\n");
       return 0;
     }
     if (!std::strcmp(argv[i], "--no-gases")) gases = false;
+    if (!std::strcmp(argv[i], "--float")) single = true;
     if (i + 1 < argc && !std::strcmp(argv[i], "--side")) side = std::strtoul(argv[++i], nullptr, 10);
   }
   const auto dir = std::filesystem::temp_directory_path() / ("solstrata_sweep_bench_" + std::to_string(::getpid()));
@@ -39,6 +41,8 @@ int main(int argc, char** argv) {
                                              : "atmosphere: {profile: column60.yaml, absorbers: {h2o: none, o2: none}}\n")
                                     << "aerosol: {type: continental_moderate, optical_depth: 0.1}\n"
                                        "sun: {solar_zenith_deg: 35}\nsurface: {albedo: 0.2}\n"
+                                    << (single ? "solver: {precision: float}\n" : "")
+                                    << ""
                                        "sweep:\n  grid:\n"
                                        "    - {parameter: aerosol.optical_depth, range: {from: 0.01, to: 2, count: "
                                     << side << ", spacing: log}}\n"
@@ -64,8 +68,10 @@ int main(int argc, char** argv) {
     const double s = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
     const double rate = double(n) / s;
     if (threads == 1) rate1 = rate;
-    std::printf("sweep %u thread(s): %.1f scenarios per second, %.3g layer-solves per second (%.2f s)%s\n", threads,
-                rate, rate * layers * points, s, sink == 0 ? " " : "");
+    // Every scenario solves its column and, once per distinct aerosol-free case, a companion.
+    const double solves = (double(n) + double(clean.size())) * layers * points;
+    std::printf("sweep (%u thread%s): %.0f scenarios/s, %.1f ns per layer-solve end to end (%.2f s)%s\n", threads,
+                threads == 1 ? "" : "s", rate, 1e9 * s * threads / solves, s, sink == 0 ? " " : "");
     if (threads == 2) std::printf("parallel efficiency with 2 threads: %.0f %%\n", 100.0 * rate / (2 * rate1));
   }
   std::filesystem::remove_all(dir);

@@ -4,6 +4,7 @@
 // (layer optics, adding, output). Best of several repetitions, single thread.
 #include <algorithm>
 #include <chrono>
+#include <cmath>
 #include <cstdio>
 #include <cstdlib>
 #include <cstring>
@@ -53,6 +54,35 @@ int main(int argc, char** argv) {
     const ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
     const double t = bench::best_seconds(reps, [&] { solve_columns_unchecked(in, o, {p.d, p.f, p.u}, work); });
     std::printf("batched %s: %.2f ns per layer-solve\n", std::string(to_string(c)).c_str(), 1e9 * t / layer_solves);
+  }
+  {
+    // The float kernel (SolverOptions::single_precision): twice the vector width; and its largest
+    // difference from double over this batch, relative to the incident flux.
+    std::vector<double> d2(p.d.size()), f2(p.f.size()), u2(p.u.size());
+    const ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
+    SolverOptions od;
+    od.block_size = block;
+    solve_columns_unchecked(in, od, {d2, f2, u2}, work);
+    for (Closure c : {Closure::delta_eddington, Closure::eddington}) {
+      SolverOptions o;
+      o.block_size = block;
+      o.closure = c;
+      o.single_precision = true;
+      const double t = bench::best_seconds(reps, [&] { solve_columns_unchecked(in, o, {p.d, p.f, p.u}, work); });
+      std::printf("batched %s float: %.2f ns per layer-solve\n", std::string(to_string(c)).c_str(), 1e9 * t / layer_solves);
+    }
+    SolverOptions of = od;
+    of.single_precision = true;
+    solve_columns_unchecked(in, of, {p.d, p.f, p.u}, work);
+    double worst = 0.0;
+    for (std::size_t lev = 0; lev <= nl; ++lev)
+      for (std::size_t i = 0; i < np; ++i) {
+        const double incident = p.mu0[i] * p.sol[i];
+        const std::size_t k = lev * np + i;
+        worst = std::max({worst, std::abs(p.d[k] - d2[k]) / incident, std::abs(p.f[k] - f2[k]) / incident,
+                          std::abs(p.u[k] - u2[k]) / incident});
+      }
+    std::printf("# float vs double: largest flux difference %.2e of the incident flux\n", worst);
   }
   {
     SolverOptions o;

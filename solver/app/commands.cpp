@@ -168,15 +168,20 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
     const char* snap_env = std::getenv("SOLSTRATA_SNAPSHOT_SECONDS");
     const double snapshot_every = snap_env ? std::atof(snap_env) : 30.0;
     auto last_snapshot = std::chrono::steady_clock::now();
+    // A snapshot of a large sweep takes a while itself: the next one waits at least ten times as
+    // long as the last took, so that snapshots never cost more than a tenth of the run.
+    double snapshot_gap = snapshot_every;
     const auto snapshot = [&] {
+      const auto t_start = std::chrono::steady_clock::now();
       writer->flush();
       io::write_sweep_file(out, study, templ, ckpt, io::read_checkpoint(ckpt), true);
       last_snapshot = std::chrono::steady_clock::now();
+      snapshot_gap = snapshot_every <= 0.0 ? 0.0 : std::max(snapshot_every, 10.0 * std::chrono::duration<double>(last_snapshot - t_start).count());
     };
     const std::size_t finished = experiment::run_scenarios(study, todo, opt, [&](experiment::ScenarioResult&& s) {
       record(s);
       progress.step();
-      if (std::chrono::duration<double>(std::chrono::steady_clock::now() - last_snapshot).count() >= snapshot_every)
+      if (std::chrono::duration<double>(std::chrono::steady_clock::now() - last_snapshot).count() >= snapshot_gap)
         snapshot();
     });
     if (finished < todo.size()) snapshot();

@@ -913,6 +913,7 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
     const auto streams = s->optional_integer("streams", 16, Range::closed(4, 64));
     if (streams.value % 2 != 0) throw s->document().error(streams, "the number of streams must be even");
     e.reference_streams = static_cast<int>(streams.value);
+    e.single_precision = s->optional_choice("precision", "double", {"double", "float"}).value == "float";
     s->check_no_unknown_keys();
   }
   {

@@ -53,6 +53,7 @@ Fluxes solve(const Problems& p, const Experiment& e) {
   }
   rt::SolverOptions opt;
   opt.closure = e.closure;
+  opt.single_precision = e.single_precision;
   thread_local rt::Workspace work;  // reused: no allocation and zeroing per run
   const rt::Status st = rt::solve_columns(batch, opt, {f.dir, f.dif, f.up}, work);
   if (!st.ok) throw std::runtime_error("two-stream solver: " + st.message);

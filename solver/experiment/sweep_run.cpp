@@ -19,36 +19,37 @@ namespace {
 /// glibc hands blocks above 128 KiB to mmap and returns them to the system when freed, and every
 /// scenario's optics and flux arrays are that large: each run then faults its pages in afresh
 /// and the kernel zeroes them (measured on a 400-scenario sweep: 466,509 page faults and 2.1x the
-/// CPU time). Keep freed memory for reuse: blocks up to 256 MiB come from the heap, and the heap
-/// is trimmed only above 512 MiB free (mallopt, glibc).
+/// CPU time). Keep freed memory for reuse: blocks up to 32 MiB come from the heap, and a heap is
+/// trimmed only above 64 MiB free (mallopt, glibc), so what is kept stays bounded.
 void keep_freed_memory() {
 #if defined(__GLIBC__)
   static std::once_flag once;
   std::call_once(once, [] {
-    mallopt(M_MMAP_THRESHOLD, 256 << 20);
-    mallopt(M_TRIM_THRESHOLD, 512 << 20);
+    mallopt(M_MMAP_THRESHOLD, 32 << 20);
+    mallopt(M_TRIM_THRESHOLD, 64 << 20);
   });
 #endif
 }
 
-AerosolEffect effect_of(const RunResult& with, const RunResult& without) {
+AerosolEffect effect_of(const RunResult& with, const std::vector<double>& without_net_down) {
   AerosolEffect a;
   const std::size_t s = with.n_levels - 1;
-  a.toa = with.net_down[0] - without.net_down[0];
-  a.surface = with.net_down[s] - without.net_down[s];
+  a.toa = with.net_down[0] - without_net_down[0];
+  a.surface = with.net_down[s] - without_net_down[s];
   a.atmosphere = a.toa - a.surface;
   return a;
 }
 
-/// Aerosol-free results, each computed once, shared between threads.
+/// The net downward flux of the aerosol-free cases (all the radiative effect needs), each
+/// computed once, shared between threads; a few hundred bytes per distinct case.
 class CleanCache {
  public:
   CleanCache(const Study& study, bool spectral) : study_(study), spectral_(spectral) {}
 
-  RunResult get(std::size_t scenario) {
+  std::vector<double> get(std::size_t scenario) {
     const std::string key = study_.aerosol_free_key(scenario);
-    std::shared_future<RunResult> fut;
-    std::optional<std::promise<RunResult>> mine;
+    std::shared_future<std::vector<double>> fut;
+    std::optional<std::promise<std::vector<double>>> mine;
     {
       std::lock_guard<std::mutex> lock(mutex_);
       auto it = cache_.find(key);
@@ -64,7 +65,7 @@ class CleanCache {
       try {
         Experiment e = study_.aerosol_free(scenario);
         e.output.spectral = false;
-        mine->set_value(run_experiment(e));
+        mine->set_value(run_experiment(e).net_down);
       } catch (...) {
         mine->set_exception(std::current_exception());
       }
@@ -82,7 +83,7 @@ class CleanCache {
   const Study& study_;
   bool spectral_;
   std::mutex mutex_;
-  std::map<std::string, std::shared_future<RunResult>> cache_;
+  std::map<std::string, std::shared_future<std::vector<double>>> cache_;
 };
 
 ScenarioResult solve_one(const Study& study, std::size_t i, bool spectral, CleanCache* clean) {
@@ -109,9 +110,13 @@ std::size_t run_parallel(std::size_t count, unsigned threads, const std::atomic<
   std::atomic<std::size_t> next{0};
   std::mutex m;
   std::condition_variable cv;
+  std::condition_variable room;   // the consumer took an item: a waiting worker may go on
   std::deque<std::size_t> ready;  // finished items, handed over under the lock
   std::exception_ptr failure;
   const unsigned n_threads = std::max(1u, threads);
+  // Back-pressure: while the caller is busy (writing a snapshot of a large sweep, say), workers
+  // stop after this many finished items are waiting, so memory does not grow with the run.
+  const std::size_t max_waiting = 64 * std::size_t{n_threads};
   unsigned running = n_threads;
   const auto stopped = [&] { return stop && stop->load(); };
 
@@ -128,11 +133,16 @@ std::size_t run_parallel(std::size_t count, unsigned threads, const std::atomic<
       if (k >= count) break;
       try {
         work(k);
-        std::lock_guard<std::mutex> lock(m);
+        std::unique_lock<std::mutex> lock(m);
         ready.push_back(k);
+        cv.notify_one();
+        room.wait(lock, [&] { return ready.size() < max_waiting || failure != nullptr; });
       } catch (...) {
-        std::lock_guard<std::mutex> lock(m);
-        if (!failure) failure = std::current_exception();
+        {
+          std::lock_guard<std::mutex> lock(m);
+          if (!failure) failure = std::current_exception();
+        }
+        room.notify_all();
       }
       cv.notify_one();
     }
@@ -152,13 +162,17 @@ std::size_t run_parallel(std::size_t count, unsigned threads, const std::atomic<
     ready.pop_front();
     const bool failed = failure != nullptr;  // read under the lock (the workers write it)
     lock.unlock();
+    room.notify_all();
     if (!failed) {
       try {
         on_done(k);
         ++done;
       } catch (...) {
-        std::lock_guard<std::mutex> l2(m);
-        if (!failure) failure = std::current_exception();
+        {
+          std::lock_guard<std::mutex> l2(m);
+          if (!failure) failure = std::current_exception();
+        }
+        room.notify_all();
       }
     }
   }
@@ -171,14 +185,25 @@ std::size_t run_scenarios(const Study& study, const std::vector<std::size_t>& to
                           const std::function<void(ScenarioResult&&)>& on_done) {
   CleanCache cache(study, options.spectral);
   CleanCache* clean = study.computes_aerosol_effect() ? &cache : nullptr;
-  // One slot per scenario to run; each is filled by its worker and emptied when handed over.
-  std::vector<std::optional<ScenarioResult>> slots(todo.size());
+  // Finished results waiting to be handed over (bounded by what the workers are ahead of the
+  // caller, not by the number of scenarios).
+  std::mutex slots_mutex;
+  std::map<std::size_t, ScenarioResult> slots;
   return run_parallel(
       todo.size(), options.threads, options.stop,
-      [&](std::size_t k) { slots[k] = solve_one(study, todo[k], options.spectral, clean); },
       [&](std::size_t k) {
-        ScenarioResult r = std::move(*slots[k]);
-        slots[k].reset();
+        ScenarioResult r = solve_one(study, todo[k], options.spectral, clean);
+        std::lock_guard<std::mutex> lock(slots_mutex);
+        slots.emplace(k, std::move(r));
+      },
+      [&](std::size_t k) {
+        ScenarioResult r;
+        {
+          std::lock_guard<std::mutex> lock(slots_mutex);
+          auto it = slots.find(k);
+          r = std::move(it->second);
+          slots.erase(it);
+        }
         on_done(std::move(r));
       });
 }

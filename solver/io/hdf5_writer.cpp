@@ -409,6 +409,14 @@ void Hdf5Writer::define_rows(const std::string& name, const std::vector<std::str
       max_shape.push_back(d.growing ? H5S_UNLIMITED : d.size);
       chunk.push_back(i == 0 ? 1 : d.size);
     }
+    // Small rows are chunked several to a chunk (about 64 KiB), so that a file of 10^5 scenarios
+    // is not 10^5 tiny chunks per variable.
+    std::size_t per_row = 1;
+    for (std::size_t i = 1; i < chunk.size(); ++i) per_row *= chunk[i];
+    hsize_t rows = std::max<hsize_t>(1, 8192 / std::max<std::size_t>(1, per_row));
+    const Impl::Dimension& first = impl_->dimensions[idx[0]];
+    if (!first.growing) rows = std::min<hsize_t>(rows, std::max<std::size_t>(1, first.size));
+    chunk[0] = rows;
     H5::DSetCreatPropList plist = Impl::creation_list();
     plist.setChunk(static_cast<int>(chunk.size()), chunk.data());
     plist.setFillValue(H5::PredType::NATIVE_DOUBLE, &kFillDouble);
@@ -424,25 +432,40 @@ void Hdf5Writer::write_row(const std::string& name, std::size_t row,
                            std::span<const double> values) {
   auto it = std::find_if(impl_->row_variables.begin(), impl_->row_variables.end(),
                          [&](const Impl::RowVariable& v) { return v.name == name; });
+  if (it != impl_->row_variables.end()) {
+    std::size_t per_row = 1;
+    for (std::size_t i = 1; i < it->dims.size(); ++i) per_row *= impl_->dimensions[it->dims[i]].size;
+    if (values.size() != per_row) {
+      impl_->fail(name, "row has " + std::to_string(values.size()) + " values, expected " + std::to_string(per_row));
+    }
+  }
+  write_rows(name, row, values);
+}
+
+void Hdf5Writer::write_rows(const std::string& name, std::size_t row, std::span<const double> values) {
+  auto it = std::find_if(impl_->row_variables.begin(), impl_->row_variables.end(),
+                         [&](const Impl::RowVariable& v) { return v.name == name; });
   if (it == impl_->row_variables.end()) {
     impl_->fail(name, "not a row variable (declare it with define_rows)");
   }
   Impl::Dimension& first = impl_->dimensions[it->dims[0]];
   std::size_t per_row = 1;
   for (std::size_t i = 1; i < it->dims.size(); ++i) per_row *= impl_->dimensions[it->dims[i]].size;
-  if (values.size() != per_row) {
-    impl_->fail(name, "row has " + std::to_string(values.size()) + " values, expected " +
+  if (values.empty() || values.size() % per_row != 0) {
+    impl_->fail(name, "rows have " + std::to_string(values.size()) + " values, not a whole number of rows of " +
                           std::to_string(per_row));
   }
-  if (!first.growing && row >= first.size) {
-    impl_->fail(name, "row " + std::to_string(row) + " is beyond dimension '" + first.name +
-                          "' of size " + std::to_string(first.size));
+  const std::size_t n_rows = values.size() / per_row;
+  if (!first.growing && row + n_rows > first.size) {
+    impl_->fail(name, (n_rows == 1 ? "row " + std::to_string(row) + " is"
+                                   : "rows " + std::to_string(row) + " to " + std::to_string(row + n_rows - 1) + " go") +
+                          " beyond dimension '" + first.name + "' of size " + std::to_string(first.size));
   }
   Impl::check_finite(*impl_, name, values);
   impl_->guarded(name, "write a row", [&] {
-    if (first.growing && row >= first.size) {
+    if (first.growing && row + n_rows > first.size) {
       // Grow the dimension: its placeholder scale and every row variable along it.
-      first.size = row + 1;
+      first.size = row + n_rows;
       const hsize_t n = first.size;
       first.scale.extend(&n);
       for (Impl::RowVariable& v : impl_->row_variables) {
@@ -455,7 +478,7 @@ void Hdf5Writer::write_row(const std::string& name, std::size_t row,
     H5::DataSpace file_space = it->data.getSpace();
     std::vector<hsize_t> start(it->dims.size(), 0), count;
     start[0] = row;
-    count.push_back(1);
+    count.push_back(n_rows);
     for (std::size_t i = 1; i < it->dims.size(); ++i) {
       count.push_back(impl_->dimensions[it->dims[i]].size);
     }

@@ -83,6 +83,8 @@ class Hdf5Writer {
   /// Writes row `row` (all values for one index of the first dimension, C order over the rest).
   /// A growing first dimension is extended to row + 1 when needed.
   void write_row(const std::string& name, std::size_t row, std::span<const double> values);
+  /// Consecutive rows from `row` on: `values` holds a whole number of rows in C order.
+  void write_rows(const std::string& name, std::size_t row, std::span<const double> values);
   /// Pushes everything written so far from HDF5's caches to the (temporary) file.
   void flush();
 

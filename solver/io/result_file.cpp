@@ -56,6 +56,7 @@ void write_global_attributes(Hdf5Writer& w, const experiment::Experiment& e, con
   w.set_attribute("", "experiment_file", e.source.string());
   w.set_attribute("", "experiment", e.text);
   w.set_attribute("", "closure", r.closure);
+  w.set_attribute("", "solver_precision", e.reference_solver ? "double" : e.single_precision ? "float" : "double");
   w.set_attribute("", "atmosphere_profile", e.given_optics_mode ? std::string("given_optics") : e.profile_origin);
   w.set_attribute("", "solar_spectrum", r.solar_description);
   w.set_attribute("", "solar_spectrum_approximate", r.solar_approximate ? 1 : 0);
@@ -235,21 +236,19 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     set_field_attributes(w, f);
   }
 
-  // Per-scenario variables: small ones gathered and written whole, large ones row by row.
+  // Per-scenario variables, written in blocks of scenarios (row variables along "scenario"), so
+  // that memory stays bounded (about 64 MB of buffered values) however many scenarios there are.
   struct Slot {
     const Field* f;
     std::size_t offset, size;
-    bool rows;
     std::vector<double> buffer;
     bool keep;  // written (chosen by output.variables); the record holds every variable anyway
   };
   std::vector<Slot> slots;
   std::size_t offset = 0;
-  constexpr std::size_t kRowThreshold = 2048;
   for (const Field& f : fields) {
     if (!f.per_scenario || !f.texts.empty()) continue;
-    slots.push_back({&f, offset, f.values.size(), f.values.size() > kRowThreshold, {},
-                     experiment::output_selected(chosen, f.name)});
+    slots.push_back({&f, offset, f.values.size(), {}, experiment::output_selected(chosen, f.name)});
     offset += f.values.size();
   }
   if (offset + (with_effect ? 3 : 0) != contents.header.record_values) {
@@ -261,27 +260,35 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     return d;
   };
   for (Slot& s : slots) {
-    if (!s.keep) continue;
-    if (s.rows) w.define_rows(s.f->name, dims_of(*s.f), {s.f->units, s.f->long_name, s.f->standard_name});
-    else s.buffer.reserve(s.size * n);
+    if (s.keep) w.define_rows(s.f->name, dims_of(*s.f), {s.f->units, s.f->long_name, s.f->standard_name});
   }
+  const std::size_t block = std::max<std::size_t>(1, (std::size_t{8} << 20) / std::max<std::size_t>(1, offset));
+  std::size_t block_start = 0;
+  const auto flush_block = [&](std::size_t end) {
+    for (Slot& s : slots) {
+      if (!s.keep || s.buffer.empty()) continue;
+      w.write_rows(s.f->name, block_start, s.buffer);
+      s.buffer.clear();
+    }
+    block_start = end;
+  };
   std::vector<double> toa(with_effect ? n : 0, kFill), sfc(with_effect ? n : 0, kFill), atm(with_effect ? n : 0, kFill);
   std::vector<int> complete(n, 0);
   for (std::size_t i = 0; i < n; ++i) {
+    if (i - block_start == block) flush_block(i);
     const auto it = contents.offsets.find(i);
     if (it == contents.offsets.end()) {
       if (!partial) throw OutputError(checkpoint.string() + ": scenario " + std::to_string(i) + " is missing");
       for (Slot& s : slots)
-        if (s.keep && !s.rows) s.buffer.insert(s.buffer.end(), s.size, kFill);
+        if (s.keep) s.buffer.insert(s.buffer.end(), s.size, kFill);
       continue;
     }
     complete[i] = 1;
     const std::vector<double> rec = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
     for (Slot& s : slots) {
       if (!s.keep) continue;
-      const std::span<const double> part(rec.data() + s.offset, s.size);
-      if (s.rows) w.write_row(s.f->name, i, part);
-      else s.buffer.insert(s.buffer.end(), part.begin(), part.end());
+      s.buffer.insert(s.buffer.end(), rec.begin() + static_cast<long>(s.offset),
+                      rec.begin() + static_cast<long>(s.offset + s.size));
     }
     if (with_effect) {
       toa[i] = rec[offset];
@@ -289,9 +296,9 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
       atm[i] = rec[offset + 2];
     }
   }
+  flush_block(n);
   for (Slot& s : slots) {
     if (!s.keep) continue;
-    if (!s.rows) w.write(s.f->name, dims_of(*s.f), s.buffer, {s.f->units, s.f->long_name, s.f->standard_name});
     const std::string c = coords + (s.f->on_levels ? " level_pressure" : "");
     if (!c.empty()) w.set_attribute(s.f->name, "coordinates", c);
     set_field_attributes(w, *s.f);

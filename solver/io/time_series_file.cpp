@@ -118,25 +118,49 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
   if (offset != contents.header.record_values) {
     throw OutputError(checkpoint.string() + ": record layout does not match this experiment");
   }
+  // Written in blocks of steps (row variables along "time"): memory stays bounded for long series.
+  const std::vector<std::string>& chosen = base.output.variables;
+  std::vector<bool> keep(slots.size());
+  for (std::size_t k = 0; k < slots.size(); ++k) {
+    const Slot& s = slots[k];
+    keep[k] = experiment::output_selected(chosen, s.f->name);  // else in the record, not written
+    if (!keep[k]) continue;
+    std::vector<std::string> dims{"time"};
+    dims.insert(dims.end(), s.f->dims.begin(), s.f->dims.end());
+    w.define_rows(s.f->name, dims, {s.f->units, s.f->long_name, s.f->standard_name});
+  }
+  const std::size_t block = std::max<std::size_t>(1, (std::size_t{8} << 20) / std::max<std::size_t>(1, offset));
+  std::size_t block_start = 0;
+  const auto flush_block = [&](std::size_t end) {
+    for (std::size_t k = 0; k < slots.size(); ++k) {
+      if (!keep[k] || slots[k].buffer.empty()) continue;
+      w.write_rows(slots[k].f->name, block_start, slots[k].buffer);
+      slots[k].buffer.clear();
+    }
+    block_start = end;
+  };
   std::vector<int> complete(n, 0);
-  for (Slot& s : slots) s.buffer.reserve(s.size * n);
   for (std::size_t i = 0; i < n; ++i) {
+    if (i - block_start == block) flush_block(i);
     const auto it = contents.offsets.find(i);
     if (it == contents.offsets.end()) {
       if (!partial) throw OutputError(checkpoint.string() + ": step " + std::to_string(i) + " is missing");
-      for (Slot& s : slots) s.buffer.insert(s.buffer.end(), s.size, kFill);
+      for (std::size_t k = 0; k < slots.size(); ++k)
+        if (keep[k]) slots[k].buffer.insert(slots[k].buffer.end(), slots[k].size, kFill);
       continue;
     }
     complete[i] = 1;
     const std::vector<double> rec = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
-    for (Slot& s : slots) s.buffer.insert(s.buffer.end(), rec.begin() + long(s.offset), rec.begin() + long(s.offset + s.size));
+    for (std::size_t k = 0; k < slots.size(); ++k) {
+      if (!keep[k]) continue;
+      Slot& s = slots[k];
+      s.buffer.insert(s.buffer.end(), rec.begin() + long(s.offset), rec.begin() + long(s.offset + s.size));
+    }
   }
-  const std::vector<std::string>& chosen = base.output.variables;
-  for (Slot& s : slots) {
-    if (!experiment::output_selected(chosen, s.f->name)) continue;  // in the record, not written
-    std::vector<std::string> dims{"time"};
-    dims.insert(dims.end(), s.f->dims.begin(), s.f->dims.end());
-    w.write(s.f->name, dims, s.buffer, {s.f->units, s.f->long_name, s.f->standard_name});
+  flush_block(n);
+  for (std::size_t k = 0; k < slots.size(); ++k) {
+    if (!keep[k]) continue;
+    const Slot& s = slots[k];
     if (s.f->on_levels) w.set_attribute(s.f->name, "coordinates", "level_pressure");
     detail::set_field_attributes(w, *s.f);
     w.set_attribute(s.f->name, "_FillValue", kFill);

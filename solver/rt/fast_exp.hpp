@@ -43,4 +43,30 @@ inline double exp_nonpositive(double x) {
   return x < -708.0 ? 0.0 : p * scale;
 }
 
+/// exp(x) for x <= 0 in float (any x > 0 is treated as 0), relative error about 2 ulp of float;
+/// exactly 0 for x < -87 (where expf underflows towards the subnormal range). The same method
+/// with the float split of ln2 and the degree-6 polynomial of the Cephes library (Moshier 1989,
+/// "Methods and Programs for Mathematical Functions", expf: minimax on [-ln2/2, ln2/2]).
+inline float exp_nonpositive(float x) {
+  constexpr float kLog2e = 1.44269504088896341f;
+  constexpr float kLn2Hi = 0.693359375f;      // exact in few bits
+  constexpr float kLn2Lo = -2.12194440e-4f;   // ln2 - kLn2Hi
+  constexpr float kShifter = 12582912.0f;     // 1.5 * 2^23
+  const float xc = x < -87.0f ? -87.0f : (x > 0.0f ? 0.0f : x);
+  const float t = xc * kLog2e + kShifter;
+  const float n = t - kShifter;
+  const float r = (xc - n * kLn2Hi) - n * kLn2Lo;
+  float p = 1.9875691500e-4f;
+  p = p * r + 1.3981999507e-3f;
+  p = p * r + 8.3334519073e-3f;
+  p = p * r + 4.1665795894e-2f;
+  p = p * r + 1.6666665459e-1f;
+  p = p * r + 5.0000001201e-1f;
+  p = p * r * r + r + 1.0f;
+  // The low 9 bits of t hold n (offset by 2^22, which the shift discards).
+  const std::uint32_t bits = (std::bit_cast<std::uint32_t>(t) << 23) + (std::uint32_t{127} << 23);
+  const float scale = std::bit_cast<float>(bits);
+  return x < -87.0f ? 0.0f : p * scale;
+}
+
 }  // namespace solstrata::rt::detail

@@ -18,39 +18,61 @@ using detail::exp_nonpositive;
 /// Cancellation error at the edge ~ eps/kSingularBand = 2e-11; interpolation error inside
 /// ~ (kSingularBand)^2 * |d2R/dmu0^2| ~ 1e-10.
 constexpr double kSingularBand = 1e-5;
+/// The same band for the float kernel: its cancellation error eps_float/band ~ 6e-5 at the edge,
+/// the interpolation error ~ band^2 ~ 1e-6 inside.
+constexpr float kSingularBandFloat = 1e-3f;
+
+/// The band of the kernel's precision.
+template <class T>
+constexpr T singular_band() {
+  if constexpr (sizeof(T) == sizeof(float)) return kSingularBandFloat;
+  else return kSingularBand;
+}
 
 /// Below this k*tau, X = (1 - exp(-2 k tau)) / (2k) is taken from its Taylor series (truncation
 /// < 4e-17 relative); above it the closed form loses < 1e-14 to cancellation.
 constexpr double kThinSeries = 0.01;
+/// For the float kernel: truncation of the series < 1e-9 and cancellation of the closed form
+/// < 1e-6 relative at the switch.
+constexpr float kThinSeriesFloat = 0.05f;
+template <class T>
+constexpr T thin_series() {
+  if constexpr (sizeof(T) == sizeof(float)) return kThinSeriesFloat;
+  else return kThinSeries;
+}
 
 /// Closure coefficients in the form the kernel uses: gamma1 - gamma2 and gamma1 + gamma2 as
 /// linear forms in omega and omega*g, so that gamma1 - gamma2 is exactly 0 at omega = 1.
+/// T is the kernel's arithmetic: double, or float for the fast variant.
+template <class T = double>
 struct KernelCoefficients {
-  double g1[3], g2[3], dif[3], sum[3], g3[2];
+  T g1[3], g2[3], dif[3], sum[3], g3[2];
   bool delta;
 };
 
-KernelCoefficients kernel_coefficients(Closure closure) {
+template <class T = double>
+KernelCoefficients<T> kernel_coefficients(Closure closure) {
   const ClosureCoefficients c = coefficients(closure);
-  KernelCoefficients k{};
+  KernelCoefficients<T> k{};
   for (int i = 0; i < 3; ++i) {
-    k.g1[i] = c.g1[i];
-    k.g2[i] = c.g2[i];
-    k.dif[i] = c.g1[i] - c.g2[i];
-    k.sum[i] = c.g1[i] + c.g2[i];
+    k.g1[i] = static_cast<T>(c.g1[i]);
+    k.g2[i] = static_cast<T>(c.g2[i]);
+    k.dif[i] = static_cast<T>(c.g1[i] - c.g2[i]);
+    k.sum[i] = static_cast<T>(c.g1[i] + c.g2[i]);
   }
-  k.g3[0] = c.g3[0];
-  k.g3[1] = c.g3[1];
+  k.g3[0] = static_cast<T>(c.g3[0]);
+  k.g3[1] = static_cast<T>(c.g3[1]);
   k.delta = c.delta_scaled;
   return k;
 }
 
 /// Layer quantities shared by the diffuse and the beam solution.
+template <class T = double>
 struct LayerCore {
-  double tau, omega, g;  // after delta scaling
-  double g1, g2, k;      // gamma1, gamma2, k = sqrt(gamma1^2 - gamma2^2)
-  double r, t;           // diffuse-incidence reflectance and transmittance
-  double inv_sing;       // 1/(1 - k^2 mu0^2), or 0 where near the removable singularity
+  T tau, omega, g;  // after delta scaling
+  T g1, g2, k;      // gamma1, gamma2, k = sqrt(gamma1^2 - gamma2^2)
+  T r, t;           // diffuse-incidence reflectance and transmittance
+  T inv_sing;       // 1/(1 - k^2 mu0^2), or 0 where near the removable singularity
   bool near;             // |1 - k mu0| < kSingularBand: the beam needs the interpolated form
 };
 
@@ -66,55 +88,55 @@ struct LayerCore {
 ///   q = 1/(s dx + gamma2^2 nx),  R = gamma2 s nx q,  T = e s dx q.
 /// These are finite for omega = 1 (k = 0) and tau = 0 without special cases. The same division
 /// also yields 1/(1 - k^2 mu0^2) for the beam solution (one reciprocal of the product).
-template <bool kDelta>
-inline LayerCore layer_core(const KernelCoefficients& c, double tau, double omega, double g,
-                            double mu0) {
-  LayerCore L;
+template <bool kDelta, class T = double>
+inline LayerCore<T> layer_core(const KernelCoefficients<T>& c, T tau, T omega, T g, T mu0) {
+  LayerCore<T> L;
+  constexpr T one = 1, zero = 0, two = 2;
   if constexpr (kDelta) {
     // One reciprocal serves omega' and g': inv = 1/((1 - omega f)(1 + g)). omega = 1 is mapped
     // to exactly 1 (a conservative layer must stay conservative to the last bit).
-    const bool forward = g > 0.0;
-    const double gp = forward ? g : 0.0;
-    const double f = gp * gp;
-    const double m = 1.0 - omega * f;
-    const double inv = 1.0 / (m * (1.0 + gp));
+    const bool forward = g > zero;
+    const T gp = forward ? g : zero;
+    const T f = gp * gp;
+    const T m = one - omega * f;
+    const T inv = one / (m * (one + gp));
     L.tau = m * tau;
-    L.omega = omega == 1.0 ? 1.0 : std::min(1.0, omega * ((1.0 - f) * (1.0 + gp)) * inv);
+    L.omega = omega == one ? one : std::min(one, omega * ((one - f) * (one + gp)) * inv);
     L.g = forward ? g * m * inv : g;
   } else {
     L.tau = tau;
     L.omega = omega;
     L.g = g;
   }
-  const double wg = L.omega * L.g;
+  const T wg = L.omega * L.g;
   L.g1 = c.g1[0] + c.g1[1] * L.omega + c.g1[2] * wg;
-  const double g2 = c.g2[0] + c.g2[1] * L.omega + c.g2[2] * wg;
+  const T g2 = c.g2[0] + c.g2[1] * L.omega + c.g2[2] * wg;
   // gamma2 limited to >= 0 (rt::kernel_gammas): the Eddington forms turn negative for
   // omega < 1/(4 - 3g) and would give negative diffuse fluxes. Where the limit acts, gamma1 -
   // gamma2 = gamma1 + gamma2 = gamma1 and k = gamma1 (streams decoupled, pure attenuation).
   // Elsewhere, and always at omega = 1, nothing changes (dif stays exactly 0 there).
-  const bool limited = g2 < 0.0;
-  L.g2 = limited ? 0.0 : g2;
-  const double dif = limited ? L.g1 : c.dif[0] + c.dif[1] * L.omega + c.dif[2] * wg;
-  const double sum = limited ? L.g1 : c.sum[0] + c.sum[1] * L.omega + c.sum[2] * wg;
-  L.k = std::sqrt(std::max(0.0, dif * sum));
-  const double y = L.k * L.tau;
-  const double e = exp_nonpositive(-y);
+  const bool limited = g2 < zero;
+  L.g2 = limited ? zero : g2;
+  const T dif = limited ? L.g1 : c.dif[0] + c.dif[1] * L.omega + c.dif[2] * wg;
+  const T sum = limited ? L.g1 : c.sum[0] + c.sum[1] * L.omega + c.sum[2] * wg;
+  L.k = std::sqrt(std::max(zero, dif * sum));
+  const T y = L.k * L.tau;
+  const T e = exp_nonpositive(-y);
   // Thin-layer branch: (1 - e^{-2y})/(2y) = 1 - y + 2y^2/3 - y^3/3 + 2y^4/15 - 2y^5/45 + 4y^6/315.
-  const double series =
-      1.0 + y * (-1.0 + y * (2.0 / 3 + y * (-1.0 / 3 + y * (2.0 / 15 + y * (-2.0 / 45 + y * (4.0 / 315))))));
-  const bool thin = y < kThinSeries;
-  const double nx = thin ? L.tau * series : 1.0 - e * e;
-  const double dx = thin ? 1.0 : 2.0 * L.k;
-  const double s = L.g1 + L.k;
-  const double km = L.k * mu0;
-  L.near = std::abs(1.0 - km) < kSingularBand;
-  const double d1 = L.near ? 1.0 : 1.0 - km * km;
-  const double d2 = s * dx + L.g2 * L.g2 * nx;
-  const double inv = 1.0 / (d1 * d2);
-  const double q = d1 * inv;
-  L.inv_sing = L.near ? 0.0 : d2 * inv;
-  const double sq = s * q;
+  const T series =
+      one + y * (-one + y * (T(2.0 / 3) + y * (T(-1.0 / 3) + y * (T(2.0 / 15) + y * (T(-2.0 / 45) + y * T(4.0 / 315))))));
+  const bool thin = y < thin_series<T>();
+  const T nx = thin ? L.tau * series : one - e * e;
+  const T dx = thin ? one : two * L.k;
+  const T s = L.g1 + L.k;
+  const T km = L.k * mu0;
+  L.near = std::abs(one - km) < singular_band<T>();
+  const T d1 = L.near ? one : one - km * km;
+  const T d2 = s * dx + L.g2 * L.g2 * nx;
+  const T inv = one / (d1 * d2);
+  const T q = d1 * inv;
+  L.inv_sing = L.near ? zero : d2 * inv;
+  const T sq = s * q;
   L.r = L.g2 * nx * sq;
   L.t = e * dx * sq;
   return L;
@@ -129,19 +151,21 @@ inline LayerCore layer_core(const KernelCoefficients& c, double tau, double omeg
 /// enters from above or below):
 ///   R_beam = A - R B - T A t0,   T_beam = B t0 - T B - R A t0,   t0 = exp(-tau/mu0).
 /// `inv_sing` is 1/(1 - k^2 mu0^2), passed in so that the caller can keep it finite.
-inline void beam_response(const KernelCoefficients& c, const LayerCore& L, double mu0,
-                          double t0, double inv_sing, double& r_beam, double& t_beam) {
+template <class T>
+inline void beam_response(const KernelCoefficients<T>& c, const LayerCore<T>& L, T mu0, T t0, T inv_sing, T& r_beam,
+                          T& t_beam) {
+  constexpr T one = 1;
   // gamma3 limited to <= 1, i.e. gamma4 >= 0 (rt::kernel_gammas): the published forms exceed 1
   // for back-scattering layers at high sun (g mu0 < -2/3 for Eddington) and would transmit a
   // negative diffuse flux.
-  const double g3 = std::min(1.0, c.g3[0] + c.g3[1] * L.g * mu0);
-  const double g4 = 1.0 - g3;
-  const double a1 = L.g1 * g4 + L.g2 * g3;
-  const double a2 = L.g1 * g3 + L.g2 * g4;
-  const double wi = L.omega * inv_sing;
-  const double a = wi * (g3 - a2 * mu0);
-  const double b = -wi * (g4 + a1 * mu0);
-  r_beam = a * (1.0 - L.t * t0) - L.r * b;
+  const T g3 = std::min(one, c.g3[0] + c.g3[1] * L.g * mu0);
+  const T g4 = one - g3;
+  const T a1 = L.g1 * g4 + L.g2 * g3;
+  const T a2 = L.g1 * g3 + L.g2 * g4;
+  const T wi = L.omega * inv_sing;
+  const T a = wi * (g3 - a2 * mu0);
+  const T b = -wi * (g4 + a1 * mu0);
+  r_beam = a * (one - L.t * t0) - L.r * b;
   t_beam = b * (t0 - L.t) - L.r * a * t0;
 }
 
@@ -149,39 +173,45 @@ inline void beam_response(const KernelCoefficients& c, const LayerCore& L, doubl
 /// Inside |1 - k mu0| < kSingularBand it is interpolated linearly between the band edges
 /// mu0 = (1 -+ kSingularBand)/k, where the closed form is still accurate; the result is
 /// continuous at the edges and within ~1e-10 of the true limit inside.
-void beam_response_near_singularity(const KernelCoefficients& c, const LayerCore& L, double mu0,
-                                    double& r_beam, double& t_beam) {
-  const double mu_lo = (1.0 - kSingularBand) / L.k;
-  const double mu_hi = (1.0 + kSingularBand) / L.k;
-  double r_lo, t_lo, r_hi, t_hi;
-  const auto at = [&](double mu, double& r, double& t) {
-    const double km = L.k * mu;
-    beam_response(c, L, mu, std::exp(-L.tau / mu), 1.0 / (1.0 - km * km), r, t);
+template <class T>
+void beam_response_near_singularity(const KernelCoefficients<T>& c, const LayerCore<T>& L, T mu0, T& r_beam,
+                                    T& t_beam) {
+  constexpr T one = 1;
+  const T mu_lo = (one - singular_band<T>()) / L.k;
+  const T mu_hi = (one + singular_band<T>()) / L.k;
+  T r_lo, t_lo, r_hi, t_hi;
+  const auto at = [&](T mu, T& r, T& t) {
+    const T km = L.k * mu;
+    beam_response(c, L, mu, std::exp(-L.tau / mu), one / (one - km * km), r, t);
   };
   at(mu_lo, r_lo, t_lo);
   at(mu_hi, r_hi, t_hi);
-  const double w = (mu0 - mu_lo) / (mu_hi - mu_lo);
+  const T w = (mu0 - mu_lo) / (mu_hi - mu_lo);
   r_beam = r_lo + w * (r_hi - r_lo);
   t_beam = t_lo + w * (t_hi - t_lo);
 }
 
 /// Scratch arrays of one block of nb problems: per layer [l * nb + j], per level [lev * nb + j].
+template <class T = double>
 struct BlockArrays {
-  double *r, *t, *rb, *tb;  // layer: diffuse R, T; beam R, T (per unit direct flux at its top)
-  double *den;              // layer: 1/(1 - R alb_below)
-  double *dir;              // level: delta-scaled direct beam, per unit at the top
-  double *trans;            // problem: true (unscaled) beam transmission down to the current level
-  double *alb, *src;        // level: diffuse albedo below, beam-generated upward source below
-  double *dn;               // level: diffuse downward flux, per unit direct flux at the top
-  double *inv_mu0;          // problem: 1/mu0
-  double *mu_layer;         // problem: effective beam cosine 1/m of the current layer (beam_path)
+  T *r, *t, *rb, *tb;  // layer: diffuse R, T; beam R, T (per unit direct flux at its top)
+  T *den;              // layer: 1/(1 - R alb_below)
+  T *dir;              // level: delta-scaled direct beam, per unit at the top
+  T *trans;            // problem: true (unscaled) beam transmission down to the current level
+  T *alb, *src;        // level: diffuse albedo below, beam-generated upward source below
+  T *dn;               // level: diffuse downward flux, per unit direct flux at the top
+  T *inv_mu0;          // problem: 1/mu0
+  T *mu_layer;         // problem: effective beam cosine 1/m of the current layer (beam_path)
+  T *mu0;              // problem: mu0 in the kernel's precision
+  T *m_row;            // problem: slant factors of the current layer in the kernel's precision
 };
 
-BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
-  BlockArrays a{};
-  double* p = base;
+template <class T>
+BlockArrays<T> carve(T* base, std::size_t nl, std::size_t nb) {
+  BlockArrays<T> a{};
+  T* p = base;
   const auto take = [&](std::size_t n) {
-    double* q = p;
+    T* q = p;
     p += n * nb;
     return q;
   };
@@ -197,23 +227,25 @@ BlockArrays carve(double* base, std::size_t nl, std::size_t nb) {
   a.dn = take(nl + 1);
   a.inv_mu0 = take(1);
   a.mu_layer = take(1);
+  a.mu0 = take(1);
+  a.m_row = take(1);
   return a;
 }
 
-std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (9 * nl + 7) * nb; }
+std::size_t workspace_size(std::size_t nl, std::size_t nb) { return (9 * nl + 9) * nb; }
 
 /// One step of the upward adding sweep over the problems of a block: combines a layer
 /// (r, t diffuse; rb, tb beam) with what lies below it (diffuse albedo alb_b, beam-generated
 /// upward source src_b) into the same quantities at the layer's top. Multiple reflections
 /// between the layer and the medium below sum to den = 1/(1 - r alb_b).
 /// A separate function so that __restrict on its parameters lets the loop vectorise.
-void adding_step_up(std::size_t nb, const double* __restrict r, const double* __restrict t,
-                    const double* __restrict rb, const double* __restrict tb,
-                    const double* __restrict dir, const double* __restrict alb_b,
-                    const double* __restrict src_b, double* __restrict alb,
-                    double* __restrict src, double* __restrict den) {
+template <class T>
+void adding_step_up(std::size_t nb, const T* __restrict r, const T* __restrict t, const T* __restrict rb,
+                    const T* __restrict tb, const T* __restrict dir, const T* __restrict alb_b,
+                    const T* __restrict src_b, T* __restrict alb, T* __restrict src, T* __restrict den) {
+  constexpr T one = 1;
   for (std::size_t j = 0; j < nb; ++j) {
-    const double d = 1.0 / (1.0 - r[j] * alb_b[j]);
+    const T d = one / (one - r[j] * alb_b[j]);
     den[j] = d;
     alb[j] = r[j] + t[j] * t[j] * alb_b[j] * d;
     src[j] = rb[j] * dir[j] + t[j] * (src_b[j] + alb_b[j] * tb[j] * dir[j]) * d;
@@ -223,49 +255,62 @@ void adding_step_up(std::size_t nb, const double* __restrict r, const double* __
 /// Solves one block of nb problems starting at problem p0 (see solve_columns). Every inner loop
 /// runs over the problems of the block and vectorises; kDelta selects delta scaling at compile
 /// time so that unscaled closures skip its division and the second beam exponential.
-template <bool kDelta>
-void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::size_t p0,
-                 std::size_t nb, const LevelFluxes& out, const BlockArrays w) {
+template <bool kDelta, class T>
+void solve_block(const KernelCoefficients<T>& coef, const ColumnBatch& in, std::size_t p0, std::size_t nb,
+                 const LevelFluxes& out, const BlockArrays<T> w) {
+  constexpr T one = 1, zero = 0;
   const std::size_t np = in.n_problems;
   const std::size_t nl = in.n_layers;
-  const double* __restrict mu0 = in.mu0.data() + p0;
-  const KernelCoefficients c = coef;  // a local copy: provably not aliased by the output stores
-  double* __restrict inv_mu0 = w.inv_mu0;
-  for (std::size_t j = 0; j < nb; ++j) inv_mu0[j] = 1.0 / mu0[j];
+  const KernelCoefficients<T> c = coef;  // a local copy: provably not aliased by the output stores
+  // Per-problem inputs in the kernel's precision (for double a plain copy).
+  T* __restrict mu0 = w.mu0;
+  T* __restrict inv_mu0 = w.inv_mu0;
+  {
+    const double* __restrict m0 = in.mu0.data() + p0;
+    for (std::size_t j = 0; j < nb; ++j) {
+      mu0[j] = static_cast<T>(m0[j]);
+      inv_mu0[j] = one / mu0[j];
+    }
+  }
   // Pseudo-spherical beam (ColumnBatch::beam_path): layer l sees slant factor m and effective
   // cosine 1/m. Plane-parallel (empty): m = 1/mu0 and the cosine is mu0 itself, bit for bit.
   const bool slant = !in.beam_path.empty();
-  const auto path_of = [&](std::size_t l) -> const double* {
-    return slant ? in.beam_path.data() + l * np + p0 : inv_mu0;
+  T* __restrict m_layer = w.m_row;
+  const auto path_of = [&](std::size_t l) -> const T* {
+    if (!slant) return inv_mu0;
+    const double* __restrict bp = in.beam_path.data() + l * np + p0;
+    for (std::size_t j = 0; j < nb; ++j) m_layer[j] = static_cast<T>(bp[j]);
+    return m_layer;
   };
 
   // 1. Layer responses, and the direct beam (delta-scaled, and true) at each level per unit
   //    direct flux at the top.
   for (std::size_t j = 0; j < nb; ++j) {
-    w.dir[j] = 1.0;
+    w.dir[j] = one;
   }
   for (std::size_t l = 0; l < nl; ++l) {
     const double* __restrict tau = in.tau.data() + l * np + p0;
     const double* __restrict om = in.omega.data() + l * np + p0;
     const double* __restrict gg = in.g.data() + l * np + p0;
-    double* __restrict r = w.r + l * nb;
-    double* __restrict t = w.t + l * nb;
-    double* __restrict rb = w.rb + l * nb;
-    double* __restrict tb = w.tb + l * nb;
-    const double* __restrict d0 = w.dir + l * nb;
-    double* __restrict d1 = w.dir + (l + 1) * nb;
-    const double* __restrict m = path_of(l);
+    T* __restrict r = w.r + l * nb;
+    T* __restrict t = w.t + l * nb;
+    T* __restrict rb = w.rb + l * nb;
+    T* __restrict tb = w.tb + l * nb;
+    const T* __restrict d0 = w.dir + l * nb;
+    T* __restrict d1 = w.dir + (l + 1) * nb;
+    const T* __restrict m = path_of(l);
     if (slant) {
-      for (std::size_t j = 0; j < nb; ++j) w.mu_layer[j] = 1.0 / m[j];
+      for (std::size_t j = 0; j < nb; ++j) w.mu_layer[j] = one / m[j];
     }
-    const double* __restrict mu = slant ? w.mu_layer : mu0;
+    const T* __restrict mu = slant ? w.mu_layer : mu0;
     int n_near = 0;
 #pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
-      const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu[j]);
-      const double t0 = exp_nonpositive(-L.tau * m[j]);
+      const LayerCore<T> L =
+          layer_core<kDelta, T>(c, static_cast<T>(tau[j]), static_cast<T>(om[j]), static_cast<T>(gg[j]), mu[j]);
+      const T t0 = exp_nonpositive(-L.tau * m[j]);
       n_near += L.near ? 1 : 0;
-      double rbj, tbj;
+      T rbj, tbj;
       beam_response(c, L, mu[j], t0, L.inv_sing, rbj, tbj);
       r[j] = L.r;
       t[j] = L.t;
@@ -273,10 +318,11 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
       tb[j] = tbj;
       d1[j] = d0[j] * t0;
     }
-    // Rare: a problem within kSingularBand of k mu0 = 1 gets the scalar interpolated form.
+    // Rare: a problem within the singular band of k mu0 = 1 gets the scalar interpolated form.
     if (n_near > 0) {
       for (std::size_t j = 0; j < nb; ++j) {
-        const LayerCore L = layer_core<kDelta>(c, tau[j], om[j], gg[j], mu[j]);
+        const LayerCore<T> L =
+            layer_core<kDelta, T>(c, static_cast<T>(tau[j]), static_cast<T>(om[j]), static_cast<T>(gg[j]), mu[j]);
         if (L.near) {
           beam_response_near_singularity(c, L, mu[j], rb[j], tb[j]);
         }
@@ -290,71 +336,71 @@ void solve_block(const KernelCoefficients& coef, const ColumnBatch& in, std::siz
   {
     const double* __restrict ad = in.albedo_direct.data() + p0;
     const double* __restrict af = in.albedo_diffuse.data() + p0;
-    const double* __restrict dsfc = w.dir + nl * nb;
-    double* __restrict alb = w.alb + nl * nb;
-    double* __restrict src = w.src + nl * nb;
+    const T* __restrict dsfc = w.dir + nl * nb;
+    T* __restrict alb = w.alb + nl * nb;
+    T* __restrict src = w.src + nl * nb;
 #pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
-      alb[j] = af[j];
-      src[j] = ad[j] * dsfc[j];
+      alb[j] = static_cast<T>(af[j]);
+      src[j] = static_cast<T>(ad[j]) * dsfc[j];
     }
   }
   for (std::size_t l = nl; l-- > 0;) {
-    adding_step_up(nb, w.r + l * nb, w.t + l * nb, w.rb + l * nb, w.tb + l * nb, w.dir + l * nb,
-                   w.alb + (l + 1) * nb, w.src + (l + 1) * nb, w.alb + l * nb, w.src + l * nb,
-                   w.den + l * nb);
+    adding_step_up<T>(nb, w.r + l * nb, w.t + l * nb, w.rb + l * nb, w.tb + l * nb, w.dir + l * nb,
+                      w.alb + (l + 1) * nb, w.src + (l + 1) * nb, w.alb + l * nb, w.src + l * nb, w.den + l * nb);
   }
 
   // 3. Downward sweep: diffuse down at level l+1 from the layer above, closed by the reflections
   //    below (D' = (T D + T_beam dir + R src_below) den); upward = alb D' + src. Scale to the
-  //    incident flux mu0 * solar and split off the true beam.
+  //    incident flux mu0 * solar and split off the true beam. Fluxes are stored in double.
   const double* __restrict sol = in.solar.data() + p0;
-  double* __restrict trans = w.trans;
+  const double* __restrict mu0d = in.mu0.data() + p0;
+  T* __restrict trans = w.trans;
   for (std::size_t lev = 0; lev <= nl; ++lev) {
-    const double* __restrict dir = w.dir + lev * nb;
-    const double* __restrict alb = w.alb + lev * nb;
-    const double* __restrict src = w.src + lev * nb;
-    double* __restrict dn = w.dn + lev * nb;
+    const T* __restrict dir = w.dir + lev * nb;
+    const T* __restrict alb = w.alb + lev * nb;
+    const T* __restrict src = w.src + lev * nb;
+    T* __restrict dn = w.dn + lev * nb;
     double* __restrict fd = out.direct_down.data() + lev * np + p0;
     double* __restrict fdd = out.diffuse_down.data() + lev * np + p0;
     double* __restrict fu = out.diffuse_up.data() + lev * np + p0;
     if (lev == 0) {
 #pragma GCC ivdep
       for (std::size_t j = 0; j < nb; ++j) {
-        const double s = mu0[j] * sol[j];
-        dn[j] = 0.0;
-        trans[j] = 1.0;
+        const double s = mu0d[j] * sol[j];
+        dn[j] = zero;
+        trans[j] = one;
         fd[j] = s;
         fdd[j] = 0.0;
-        fu[j] = s * src[j];
+        fu[j] = s * static_cast<double>(src[j]);
       }
       continue;
     }
     const std::size_t l = lev - 1;
-    const double* __restrict r = w.r + l * nb;
-    const double* __restrict t = w.t + l * nb;
-    const double* __restrict tb = w.tb + l * nb;
-    const double* __restrict den = w.den + l * nb;
-    const double* __restrict dabove = w.dn + l * nb;
-    const double* __restrict dir_above = w.dir + l * nb;
+    const T* __restrict r = w.r + l * nb;
+    const T* __restrict t = w.t + l * nb;
+    const T* __restrict tb = w.tb + l * nb;
+    const T* __restrict den = w.den + l * nb;
+    const T* __restrict dabove = w.dn + l * nb;
+    const T* __restrict dir_above = w.dir + l * nb;
     const double* __restrict tau = in.tau.data() + l * np + p0;
-    const double* __restrict m = path_of(l);
+    const T* __restrict m = kDelta ? path_of(l) : inv_mu0;
 #pragma GCC ivdep
     for (std::size_t j = 0; j < nb; ++j) {
-      const double d = (t[j] * dabove[j] + tb[j] * dir_above[j] + r[j] * src[j]) * den[j];
-      const double s = mu0[j] * sol[j];
+      const T d = (t[j] * dabove[j] + tb[j] * dir_above[j] + r[j] * src[j]) * den[j];
+      const double s = mu0d[j] * sol[j];
       // The true beam sees the unscaled tau. Without delta scaling it is the scaled beam itself;
       // with it, where scaling leaves tau unchanged (omega = 0 or g <= 0) the factors are equal bit
       // for bit, so a non-scattering column has exactly no diffuse light.
-      double beam = dir[j];
+      T beam = dir[j];
       if constexpr (kDelta) {
-        trans[j] *= exp_nonpositive(-tau[j] * m[j]);
+        trans[j] *= exp_nonpositive(-static_cast<T>(tau[j]) * m[j]);
         beam = trans[j];
       }
       dn[j] = d;
-      fd[j] = s * beam;
-      fdd[j] = s * ((dir[j] + d) - beam);
-      fu[j] = s * (alb[j] * d + src[j]);
+      fd[j] = s * static_cast<double>(beam);
+      fdd[j] = s * static_cast<double>((dir[j] + d) - beam);
+      fu[j] = s * static_cast<double>(alb[j] * d + src[j]);
     }
   }
 }
@@ -404,14 +450,19 @@ void Workspace::reserve(std::size_t n_layers, std::size_t block_size) {
   if (buf_.size() < n) buf_.resize(n);
 }
 
+void Workspace::reserve_float(std::size_t n_layers, std::size_t block_size) {
+  const std::size_t n = workspace_size(n_layers, block_size);
+  if (buf_f_.size() < n) buf_f_.resize(n);
+}
+
 LayerResponse solve_layer(double tau, double omega, double g, double mu0, Closure closure) {
   if (!(tau >= 0.0) || !std::isfinite(tau)) throw std::invalid_argument(describe("tau", 0, tau, "0 <= tau < inf"));
   if (!(omega >= 0.0 && omega <= 1.0)) throw std::invalid_argument(describe("omega", 0, omega, "0 <= omega <= 1"));
   if (!(g > -1.0 && g < 1.0)) throw std::invalid_argument(describe("g", 0, g, "-1 < g < 1"));
   if (!(mu0 > 0.0 && mu0 <= 1.0)) throw std::invalid_argument(describe("mu0", 0, mu0, "0 < mu0 <= 1"));
-  const KernelCoefficients c = kernel_coefficients(closure);
-  const LayerCore L = c.delta ? layer_core<true>(c, tau, omega, g, mu0)
-                              : layer_core<false>(c, tau, omega, g, mu0);
+  const KernelCoefficients<double> c = kernel_coefficients<double>(closure);
+  const LayerCore<double> L = c.delta ? layer_core<true, double>(c, tau, omega, g, mu0)
+                                      : layer_core<false, double>(c, tau, omega, g, mu0);
   LayerResponse out{};
   out.r_diffuse = L.r;
   out.t_diffuse = L.t;
@@ -481,19 +532,35 @@ Status validate(const ColumnBatch& in, const LevelFluxes& out) {
   return {};
 }
 
-void solve_columns_unchecked(const ColumnBatch& in, const SolverOptions& options, LevelFluxes out,
-                             Workspace& work) {
-  const KernelCoefficients c = kernel_coefficients(options.closure);
+namespace {
+
+template <class T>
+void solve_all_blocks(const ColumnBatch& in, const SolverOptions& options, const LevelFluxes& out, T* work) {
+  const KernelCoefficients<T> c = kernel_coefficients<T>(options.closure);
   const std::size_t bs = std::max<std::size_t>(1, options.block_size);
-  work.reserve(in.n_layers, std::min(bs, std::max<std::size_t>(1, in.n_problems)));
   for (std::size_t p0 = 0; p0 < in.n_problems; p0 += bs) {
     const std::size_t nb = std::min(bs, in.n_problems - p0);
-    const BlockArrays arrays = carve(work.data(), in.n_layers, nb);
+    const BlockArrays<T> arrays = carve(work, in.n_layers, nb);
     if (c.delta) {
-      solve_block<true>(c, in, p0, nb, out, arrays);
+      solve_block<true, T>(c, in, p0, nb, out, arrays);
     } else {
-      solve_block<false>(c, in, p0, nb, out, arrays);
+      solve_block<false, T>(c, in, p0, nb, out, arrays);
     }
+  }
+}
+
+}  // namespace
+
+void solve_columns_unchecked(const ColumnBatch& in, const SolverOptions& options, LevelFluxes out,
+                             Workspace& work) {
+  const std::size_t bs = std::max<std::size_t>(1, options.block_size);
+  const std::size_t nb = std::min(bs, std::max<std::size_t>(1, in.n_problems));
+  if (options.single_precision) {
+    work.reserve_float(in.n_layers, nb);
+    solve_all_blocks<float>(in, options, out, work.data_float());
+  } else {
+    work.reserve(in.n_layers, nb);
+    solve_all_blocks<double>(in, options, out, work.data());
   }
 }
 

@@ -16,6 +16,9 @@ struct SolverOptions {
   Closure closure = Closure::delta_eddington;
   /// Problems solved together in one cache-sized block (the vector loop runs over a block).
   std::size_t block_size = 128;
+  /// Arithmetic of the kernel: double (default), or float, twice the vector width, with fluxes
+  /// good to about 1e-5 relative (inputs and outputs stay double).
+  bool single_precision = false;
 
   /// Empty when valid, else a sentence naming the field, its value and the rule.
   [[nodiscard]] std::string validate() const;
@@ -95,10 +98,14 @@ class Workspace {
  public:
   /// Grows the buffers to hold `n_layers` layers of a block of `block_size` problems.
   void reserve(std::size_t n_layers, std::size_t block_size);
+  /// The same for the float kernel.
+  void reserve_float(std::size_t n_layers, std::size_t block_size);
   double* data() { return buf_.data(); }
+  float* data_float() { return buf_f_.data(); }
 
  private:
   std::vector<double> buf_;
+  std::vector<float> buf_f_;
 };
 
 /// Checks every input of a batch: sizes, finiteness and ranges. Status names the first offender.

@@ -10,6 +10,7 @@
 
 #include "atmos/humidity.hpp"
 #include "experiment/experiment.hpp"
+#include "experiment/run.hpp"
 #include "experiment/input_error.hpp"
 
 using namespace solstrata;
@@ -240,4 +241,23 @@ TEST_CASE("without a surface section the albedo is the documented default 0.2", 
   const experiment::Experiment e = experiment::parse_experiment("sun: {solar_zenith_deg: 30}\n", "exp.yaml", ".");
   CHECK(e.albedo_direct == 0.2);
   CHECK(e.albedo_diffuse == 0.2);
+}
+
+TEST_CASE("solver.precision selects the float kernel, and its fluxes stay within 1e-5 of double", "[experiment]") {
+  // Agreement with the double kernel on a full column (built-in atmosphere, gases, aerosol): the
+  // float kernel's documented accuracy (docs/experiment-keys.md, solver.precision).
+  const std::string base = "aerosol: {type: urban_haze, optical_depth: 0.3}\nsun: {solar_zenith_deg: 50}\n";
+  const experiment::Experiment d = experiment::parse_experiment(base, "exp.yaml", ".");
+  const experiment::Experiment f = experiment::parse_experiment(base + "solver: {precision: float}\n", "exp.yaml", ".");
+  CHECK_FALSE(d.single_precision);
+  REQUIRE(f.single_precision);
+  const experiment::RunResult rd = experiment::run_experiment(d), rf = experiment::run_experiment(f);
+  const double incident = rd.toa_down;
+  for (std::size_t lev = 0; lev < rd.n_levels; ++lev) {
+    CHECK(std::abs(rf.direct_down[lev] - rd.direct_down[lev]) < 1e-5 * incident);
+    CHECK(std::abs(rf.diffuse_down[lev] - rd.diffuse_down[lev]) < 1e-5 * incident);
+    CHECK(std::abs(rf.diffuse_up[lev] - rd.diffuse_up[lev]) < 1e-5 * incident);
+  }
+  CHECK_THROWS_WITH(experiment::parse_experiment(base + "solver: {precision: half}\n", "exp.yaml", "."),
+                    Catch::Contains("precision") && Catch::Contains("float"));
 }
