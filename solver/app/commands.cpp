@@ -29,103 +29,9 @@
 namespace solstrata::app {
 namespace {
 
-constexpr const char* kRunHelp = R"(usage: solstrata run EXPERIMENT.yaml [options]
-
-Runs the experiment: builds the optics of the atmosphere on the spectral grid, solves the
-two-stream equations at every spectral point, and writes a netCDF-4/HDF5 file with level fluxes,
-heating rates, transmittances and surface products. Prints a summary table.
-
-options:
-  -o, --output FILE   HDF5 file to write (default: output.file of the experiment, else
-                      EXPERIMENT.h5 in the working directory)
-  --csv FILE          also write a flat CSV summary (one row per band and a broadband row)
-  --spectral          also write per-bin level fluxes (wavelength dimension)
-  -j, --jobs N        worker threads for sweeps (default: the machine's cores)
-  --resume            continue an interrupted sweep from its checkpoint (OUT.h5.partial)
-  -q, --quiet         print nothing but errors (no progress line)
-  -h, --help          show this help
-
-The output file is written under a temporary name and renamed when complete: a failed run
-leaves no file behind. A sweep records each finished scenario in OUT.h5.partial (append-only,
-checksummed) as it goes; after Ctrl-C, SIGTERM or a crash, 'solstrata run EXP.yaml --resume'
-continues where it stopped and ends with the same file as an uninterrupted run.
-exit codes: 0 success, 1 the run failed, 2 bad input or bad usage, 130 interrupted (resumable)
-)";
-
-constexpr const char* kCheckHelp = R"(usage: solstrata check EXPERIMENT.yaml
-
-Reads and validates the experiment (every scenario of a sweep) without running it, and prints
-what a run would do: scenario count and estimated output size.
-Errors name the file, line, column and key, and what was expected.
-
-options:
-  -h, --help   show this help
-
-exit codes: 0 valid, 2 invalid (message on stderr)
-)";
-
-struct RunOptions {
-  std::string experiment;  ///< path of the experiment file
-  std::string output;      ///< output HDF5 path ("" = from the experiment)
-  std::string csv;         ///< CSV summary path ("" = from the experiment or none)
-  bool spectral = false;   ///< write per-bin fluxes
-  bool quiet = false;      ///< no terminal output
-  bool resume = false;     ///< continue an interrupted sweep
-  unsigned jobs = 0;       ///< worker threads (0 = the machine's cores)
-};
-
 std::atomic<bool> g_stop{false};
 extern "C" void on_signal(int) { g_stop.store(true); }
 
-int usage(const std::string& cmd, const std::string& msg) {
-  std::cerr << "solstrata " << cmd << ": " << msg << "\nRun 'solstrata " << cmd << " --help' for usage.\n";
-  return kExitBadInput;
-}
-
-/// Parses run/check arguments; returns -1 to go on, or an exit code.
-int parse(const std::string& cmd, const std::vector<std::string>& args, RunOptions& o, const char* help) {
-  for (std::size_t i = 0; i < args.size(); ++i) {
-    const std::string& a = args[i];
-    const auto next = [&](std::string& into) {
-      if (i + 1 >= args.size()) return false;
-      into = args[++i];
-      return true;
-    };
-    if (a == "-h" || a == "--help") {
-      std::cout << help;
-      return kExitOk;
-    } else if (cmd == "run" && (a == "-o" || a == "--output")) {
-      if (!next(o.output)) return usage(cmd, a + " needs a file name");
-    } else if (cmd == "run" && a == "--csv") {
-      if (!next(o.csv)) return usage(cmd, "--csv needs a file name");
-    } else if (cmd == "run" && a == "--spectral") {
-      o.spectral = true;
-    } else if (cmd == "run" && (a == "-q" || a == "--quiet")) {
-      o.quiet = true;
-    } else if (cmd == "run" && a == "--resume") {
-      o.resume = true;
-    } else if (cmd == "run" && (a == "-j" || a == "--jobs")) {
-      std::string v;
-      if (!next(v)) return usage(cmd, a + " needs a number of threads");
-      try {
-        std::size_t used = 0;
-        const long n = std::stol(v, &used);
-        if (used != v.size() || n < 1 || n > 1024) throw std::out_of_range(v);
-        o.jobs = static_cast<unsigned>(n);
-      } catch (...) {
-        return usage(cmd, a + " " + v + ": expected a whole number of threads, 1 to 1024");
-      }
-    } else if (!a.empty() && a[0] == '-') {
-      return usage(cmd, "unknown option '" + a + "'");
-    } else if (o.experiment.empty()) {
-      o.experiment = a;
-    } else {
-      return usage(cmd, "only one experiment file, got '" + o.experiment + "' and '" + a + "'");
-    }
-  }
-  if (o.experiment.empty()) return usage(cmd, "missing the experiment file (EXPERIMENT.yaml)");
-  return -1;
-}
 
 /// Why `path` cannot be written as an output file ("" when it can): its directory must exist and
 /// be writable, and the path must not name a directory.
@@ -316,9 +222,7 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
 
 }  // namespace
 
-int check_command(const std::vector<std::string>& args) {
-  RunOptions o;
-  if (int rc = parse("check", args, o, kCheckHelp); rc >= 0) return rc;
+int check_command(const RunOptions& o) {
   int rc = kExitOk;
   const std::optional<experiment::Study> loaded = load_study(o.experiment, rc);
   if (!loaded) return rc;
@@ -349,9 +253,7 @@ int check_command(const std::vector<std::string>& args) {
   }
 }
 
-int run_command(const std::vector<std::string>& args) {
-  RunOptions o;
-  if (int rc = parse("run", args, o, kRunHelp); rc >= 0) return rc;
+int run_command(const RunOptions& o) {
   // Ctrl-C / SIGTERM from here on stop a sweep cleanly (finished scenarios are kept).
   g_stop.store(false);
   std::signal(SIGINT, on_signal);
@@ -405,77 +307,13 @@ int run_command(const std::vector<std::string>& args) {
   return kExitOk;
 }
 
-namespace {
-
-constexpr const char* kAccuracyHelp = R"(usage: solstrata accuracy EXPERIMENT.yaml [options]
-
-Runs the experiment twice - with its two-stream closure and with the exact multi-stream reference
-(discrete ordinates, Henyey-Greenstein phase function, delta-M) - and reports how far the fast
-answer is from the exact one for your atmosphere: per band and broadband, the difference of the
-direct, diffuse, upward and net flux at the top and at the surface (W m-2 and percent), the
-largest difference over all levels, and the heating-rate difference. For a sweep, a deterministic
-sample of scenarios (evenly spaced over the scenario index) is compared.
-
-options:
-  --streams N       total number of reference streams (both hemispheres: N/2 directions each),
-                    even, 4 to 64 (default 16; 32 for tighter checks)
-  --sample K        scenarios of a sweep to compare (default 5)
-  -j, --jobs N      worker threads (default: the machine's cores); the results do not depend on it
-  -o, --output FILE also write the full comparison (per band and level) as HDF5
-  -q, --quiet       no table
-  -h, --help        show this help
-
-exit codes: 0 success, 1 the run failed, 2 bad input or bad usage
-)";
-
-}  // namespace
-
-int accuracy_command(const std::vector<std::string>& args) {
-  std::string file, out;
-  int streams = 16;
-  std::size_t sample = 5;
-  unsigned jobs = 0;
-  bool quiet = false;
-  for (std::size_t i = 0; i < args.size(); ++i) {
-    const std::string& a = args[i];
-    const auto number = [&](long lo, long hi, long& v) {
-      if (i + 1 >= args.size()) return false;
-      try {
-        std::size_t used = 0;
-        v = std::stol(args[i + 1], &used);
-        ++i;
-        return used == args[i].size() && v >= lo && v <= hi;
-      } catch (...) {
-        return false;
-      }
-    };
-    long v = 0;
-    if (a == "-h" || a == "--help") {
-      std::cout << kAccuracyHelp;
-      return kExitOk;
-    } else if (a == "--streams") {
-      if (!number(4, 64, v) || v % 2) return usage("accuracy", "--streams needs an even number from 4 to 64");
-      streams = static_cast<int>(v);
-    } else if (a == "--sample") {
-      if (!number(1, 100000, v)) return usage("accuracy", "--sample needs a whole number from 1 to 100000");
-      sample = static_cast<std::size_t>(v);
-    } else if (a == "-j" || a == "--jobs") {
-      if (!number(1, 1024, v)) return usage("accuracy", a + ": expected a whole number of threads, 1 to 1024");
-      jobs = static_cast<unsigned>(v);
-    } else if (a == "-o" || a == "--output") {
-      if (i + 1 >= args.size()) return usage("accuracy", a + " needs a file name");
-      out = args[++i];
-    } else if (a == "-q" || a == "--quiet") {
-      quiet = true;
-    } else if (!a.empty() && a[0] == '-') {
-      return usage("accuracy", "unknown option '" + a + "'");
-    } else if (file.empty()) {
-      file = a;
-    } else {
-      return usage("accuracy", "only one experiment file");
-    }
-  }
-  if (file.empty()) return usage("accuracy", "missing the experiment file (EXPERIMENT.yaml)");
+int accuracy_command(const AccuracyOptions& o) {
+  const std::string& file = o.experiment;
+  const std::string& out = o.output;
+  const int streams = o.streams;
+  const std::size_t sample = o.sample;
+  const unsigned jobs = o.jobs;
+  const bool quiet = o.quiet;
   int rc = kExitOk;
   const std::optional<experiment::Study> study = load_study(file, rc);
   if (!study) return rc;

@@ -898,7 +898,8 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
   }
   {
     if (series && !root.has("sun")) {
-      place_sun(e, step_time.value_or(e.series.times_unix.front()));
+      // Not value_or: its argument is evaluated even when a step time is given, and a step has no times.
+      place_sun(e, step_time ? *step_time : e.series.times_unix.front());
     } else {
       Section s = root.subsection("sun");
       read_sun(s, e, series, step_time);

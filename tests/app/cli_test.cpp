@@ -81,6 +81,119 @@ TEST_CASE("every command has --help and the tool has --version", "[app]") {
   CHECK(run("run a.yaml --bogus").code == 2);
 }
 
+// The option names, arguments and exit codes checked below are the documented interface
+// (README.md, "Using it"; DEVELOPERS.md, exit codes 0/1/2/130).
+TEST_CASE("every subcommand's --help names its arguments, all of its options and its exit codes", "[app]") {
+  struct Command {
+    const char* name;
+    std::vector<std::string> options;
+  };
+  const std::vector<Command> commands = {
+      {"run", {"EXPERIMENT.yaml", "-o,--output FILE", "--csv FILE", "--spectral", "-j,--jobs N", "--resume",
+               "-q,--quiet", "-h,--help"}},
+      {"check", {"EXPERIMENT.yaml", "-h,--help"}},
+      {"accuracy", {"EXPERIMENT.yaml", "--streams N", "--sample K", "-j,--jobs N", "-o,--output FILE", "-q,--quiet",
+                    "-h,--help"}},
+      {"demo", {"--sza DEG", "--albedo A", "--closure NAME", "-h,--help"}},
+  };
+  const Outcome top = run("--help");
+  REQUIRE(top.code == 0);
+  for (const Command& c : commands) {
+    INFO(c.name);
+    CHECK_THAT(top.out, Catch::Contains(std::string("\n  ") + c.name + " "));  // listed with its summary
+    const Outcome h = run(std::string(c.name) + " --help");
+    CHECK(h.code == 0);
+    CHECK(h.err.empty());
+    CHECK_THAT(h.out, Catch::StartsWith(std::string("usage: solstrata ") + c.name));
+    CHECK_THAT(h.out, Catch::Contains("exit codes: 0 "));
+    for (const std::string& o : c.options) CHECK_THAT(h.out, Catch::Contains("  " + o));
+    // -h, and 'solstrata help COMMAND', print the same text.
+    CHECK(run(std::string(c.name) + " -h").out == h.out);
+    CHECK(run(std::string("help ") + c.name).out == h.out);
+  }
+  CHECK_THAT(run("run --help").out, Catch::Contains("130 interrupted"));
+  // No arguments at all: the overview, on stderr, and exit code 2.
+  const Outcome none = run("");
+  CHECK(none.code == 2);
+  CHECK(none.out.empty());
+  CHECK(none.err == top.out);
+}
+
+TEST_CASE("an option value may follow an equals sign or come as the next argument", "[app]") {
+  // demo prints its settings in the table header: the two spellings must give the same table.
+  const Outcome spaced = run("demo --sza 45 --albedo 0.5 --closure pifm");
+  const Outcome joined = run("demo --sza=45 --albedo=0.5 --closure=pifm");
+  REQUIRE(spaced.code == 0);
+  REQUIRE(joined.code == 0);
+  CHECK_THAT(joined.out, Catch::Contains("closure pifm, solar zenith 45.0 deg, surface albedo 0.50"));
+  CHECK(joined.out == spaced.out);
+  CHECK(run("demo").out != spaced.out);  // the options did change something
+
+  std::ofstream(workdir() / "eq.yaml") << kGood;
+  const Outcome o = run("run eq.yaml --output=eq.h5 --csv=eq.csv --jobs=1 --quiet");
+  INFO(o.err);
+  CHECK(o.code == 0);
+  CHECK(o.out.empty());
+  CHECK(fs::exists(workdir() / "eq.h5"));
+  CHECK(fs::exists(workdir() / "eq.csv"));
+  fs::remove(workdir() / "eq.h5");
+  fs::remove(workdir() / "eq.csv");
+  // Short options take their value attached too.
+  CHECK(run("run eq.yaml -oeq.h5 -j1 -q").code == 0);
+  CHECK(fs::exists(workdir() / "eq.h5"));
+  fs::remove(workdir() / "eq.h5");
+  const Outcome acc = run("accuracy eq.yaml --streams=4 --sample=1 --jobs=1");
+  INFO(acc.err);
+  CHECK(acc.code == 0);
+  CHECK_THAT(acc.out, Catch::Contains("4-stream reference"));
+}
+
+TEST_CASE("bad option values are refused in one style, with exit code 2 and nothing written", "[app]") {
+  std::ofstream(workdir() / "typed.yaml") << kGood;
+  struct Bad {
+    std::string command, args;
+    std::vector<std::string> expect;  // fragments of the message
+  };
+  const std::vector<Bad> cases = {
+      {"run", "typed.yaml -o t.h5 -j 0", {"--jobs", "1 to 1024", "got '0'"}},
+      {"run", "typed.yaml -o t.h5 --jobs=abc", {"--jobs", "whole number", "got 'abc'"}},
+      {"run", "typed.yaml -o t.h5 --jobs=2.5", {"--jobs", "got '2.5'"}},
+      {"run", "typed.yaml -o t.h5 -j", {"--jobs needs a value"}},
+      {"run", "typed.yaml --output", {"--output needs a value"}},
+      {"run", "typed.yaml -o t.h5 --spectrl", {"unknown option '--spectrl'", "did you mean '--spectral'"}},
+      {"run", "typed.yaml typed.yaml -o t.h5", {"unexpected argument 'typed.yaml'"}},
+      {"run", "nowhere.yaml -o t.h5", {"no such file 'nowhere.yaml'"}},
+      {"run", "-o t.h5", {"missing the experiment file"}},
+      {"check", "adir_for_check", {"is a directory"}},
+      {"accuracy", "typed.yaml --streams 7", {"--streams", "even", "4 to 64", "got '7'"}},
+      {"accuracy", "typed.yaml --streams=66", {"--streams", "got '66'"}},
+      {"accuracy", "typed.yaml --sample 0", {"--sample", "1 to 100000"}},
+      {"accuracy", "typed.yaml -j 0", {"--jobs", "1 to 1024", "got '0'"}},
+      {"demo", "--sza 95", {"--sza", "0 <= DEG < 90 (in degrees)", "got '95'"}},
+      {"demo", "--sza=-5", {"--sza", "got '-5'"}},
+      {"demo", "--sza nan", {"--sza", "got 'nan'"}},
+      {"demo", "--albedo=x", {"--albedo", "0 <= A <= 1", "got 'x'"}},
+      {"demo", "--closure delta-eddington", {"--closure", "expected one of delta_eddington,", "did you mean 'delta_eddington'"}},
+  };
+  fs::create_directories(workdir() / "adir_for_check");
+  for (const Bad& b : cases) {
+    const Outcome o = run(b.command + " " + b.args);
+    INFO(b.command << " " << b.args << ":\n" << o.err);
+    CHECK(o.code == 2);
+    CHECK(o.out.empty());
+    CHECK_THAT(o.err, Catch::StartsWith("solstrata " + b.command + ": "));
+    CHECK_THAT(o.err, Catch::EndsWith("Run 'solstrata " + b.command + " --help' for usage.\n"));
+    for (const std::string& e : b.expect) CHECK_THAT(o.err, Catch::Contains(e));
+  }
+  fs::remove_all(workdir() / "adir_for_check");
+  CHECK(leftovers().empty());
+  // The same style without a command.
+  const Outcome unknown = run("rnu typed.yaml");
+  CHECK(unknown.code == 2);
+  CHECK(unknown.err == "solstrata: unknown command 'rnu' (did you mean 'run'?)\nRun 'solstrata --help' for usage.\n");
+  CHECK(run("--bogus").code == 2);
+}
+
 TEST_CASE("the Planck approximation, asked for, is flagged in the summary", "[app]") {
   std::ofstream(workdir() / "planck.yaml") << kGood << "spectrum:\n  solar_spectrum: planck\n";
   const Outcome o = run("run planck.yaml -o planck.h5");
