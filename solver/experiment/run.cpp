@@ -33,14 +33,22 @@ struct Fluxes {
   std::vector<double> dir, dif, up;
 };
 
-Fluxes solve(const Problems& p, const Experiment& e) {
-  Fluxes f;
+/// The level fluxes of a run's problems, in buffers reused by the thread's next run (the solver
+/// writes every value; a sweep would otherwise allocate and zero them per scenario). Valid until
+/// the thread's next call.
+const Fluxes& solve(const Problems& p, const Experiment& e) {
+  thread_local Fluxes f;
   const std::size_t nlev = p.nl + 1;
-  f.dir.assign(nlev * p.n, 0.0);
-  f.dif.assign(nlev * p.n, 0.0);
-  f.up.assign(nlev * p.n, 0.0);
+  f.dir.resize(nlev * p.n);
+  f.dif.resize(nlev * p.n);
+  f.up.resize(nlev * p.n);
   // No light (the sun below the horizon): every flux is exactly 0, nothing to solve.
-  if (std::all_of(p.solar.begin(), p.solar.end(), [](double v) { return v == 0.0; })) return f;
+  if (std::all_of(p.solar.begin(), p.solar.end(), [](double v) { return v == 0.0; })) {
+    std::fill(f.dir.begin(), f.dir.end(), 0.0);
+    std::fill(f.dif.begin(), f.dif.end(), 0.0);
+    std::fill(f.up.begin(), f.up.end(), 0.0);
+    return f;
+  }
   rt::ColumnBatch batch{p.n, p.nl, p.tau, p.omega, p.g, p.mu0, p.solar, p.albedo_direct, p.albedo_diffuse};
   batch.rayleigh_fraction = p.rayleigh_fraction;  // the reference's Rayleigh phase function
   batch.beam_path = p.beam_path;                  // pseudo-spherical direct beam
@@ -160,7 +168,7 @@ RunResult run_given(const Experiment& e, double mu0, double factor) {
     p.albedo_direct.push_back(e.albedo_direct);
     p.albedo_diffuse.push_back(e.albedo_diffuse);
   }
-  const Fluxes f = solve(p, e);
+  const Fluxes& f = solve(p, e);
   RunResult r;
   r.n_levels = p.nl + 1;
   r.n_layers = p.nl;
@@ -259,7 +267,7 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
     p.albedo_direct.push_back(alb_dir[bin]);
     p.albedo_diffuse.push_back(alb_dif[bin]);
   }
-  const Fluxes f = solve(p, e);
+  const Fluxes& f = solve(p, e);
 
   RunResult r;
   r.n_levels = p.nl + 1;

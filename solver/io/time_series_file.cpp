@@ -282,7 +282,10 @@ void write_time_series_csv(const std::filesystem::path& file, const std::filesys
     if (std::find(present.begin(), present.end(), v) == present.end()) continue;
     const StoredVariable sv = read_variable(file, v);
     std::string name(v);
-    if (sv.attributes.count("units")) name += "_" + text_attribute(sv.attributes, "units");
+    if (sv.attributes.count("units")) {
+      name += '_';  // appended in two steps: GCC 12 warns (-Wrestrict, falsely) on "_" + string
+      name += text_attribute(sv.attributes, "units");
+    }
     for (char& c : name)
       if (c == ' ') c = '_';
     header.push_back(std::move(name));
