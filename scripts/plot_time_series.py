@@ -65,12 +65,12 @@ def plot_series(f, stem, out):
         tilt = f.attrs.get("plane_tilt_deg")
         az = f.attrs.get("plane_azimuth_deg")
         if tilt is not None:
-            caption += f"; plane tilt {float(np.ravel(tilt)[0]):g} deg facing azimuth {float(np.ravel(az)[0]):g} deg"
+            caption += f"; plane tilt {float(np.ravel(tilt)[0]):g}° facing azimuth {float(np.ravel(az)[0]):g}°"
     ax.set_title(_title(f, "Irradiance at the surface, " + caption), fontsize=10)
     elev = 90.0 - f["solar_zenith_angle"][()]
     ax2.plot(x, np.where(elev > -20, elev, np.nan), color="tab:orange", label="solar elevation")
     ax2.axhline(0, color="0.4", lw=0.8)
-    ax2.set_ylabel("solar elevation (degree)", color="tab:orange")
+    ax2.set_ylabel("solar elevation (°)", color="tab:orange")
     ax2.grid(alpha=0.3)
     if "par_photon" in f:
         ax3 = ax2.twinx()
