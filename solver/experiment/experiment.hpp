@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "atmos/profile.hpp"
+#include "experiment/input_error.hpp"
 #include "optics/aerosol.hpp"
 #include "optics/column_optics.hpp"
 #include "rt/closure.hpp"
@@ -53,6 +54,8 @@ struct OutputConfig {
   std::filesystem::path file;  ///< the HDF5 file to write
   bool spectral = false;       ///< also write per-bin level fluxes
   std::filesystem::path csv;   ///< optional flat CSV summary (empty = none)
+  SourceMark file_mark;        ///< where output.file is written in the experiment (unknown: default)
+  SourceMark csv_mark;         ///< where output.csv is written (unknown: not in the file)
 };
 
 /// Which top-of-atmosphere solar spectrum a run uses.
@@ -155,6 +158,10 @@ std::string read_experiment_text(const std::filesystem::path& path);
 /// relative paths.
 Experiment parse_experiment(std::string text, const std::string& name,
                             const std::filesystem::path& base_dir, ProfileCache* profiles = nullptr);
+
+/// Reads the text of an atmosphere profile file (the format of profiles/*.yaml); `name` stands
+/// for the file in messages. Throws InputError (file, line, column, key) on any problem.
+atmos::Profile parse_profile(std::string text, const std::string& name);
 
 /// Every top-level key of an experiment file, with a one-line description (for help texts and
 /// the key reference test).

@@ -1,5 +1,6 @@
 #include "experiment/yaml_reader.hpp"
 
+#include <yaml-cpp/depthguard.h>
 #include <yaml-cpp/yaml.h>
 
 #include <algorithm>
@@ -172,6 +173,12 @@ Document Document::parse(std::string text, std::string name) {
                        line_of(*source, m.line));
     }
     if (!docs.empty()) source->root = docs.front();
+  } catch (const YAML::DeepRecursion& e) {
+    const SourceMark m = to_mark(e.mark);
+    throw InputError(source->name, m, {},
+                     "YAML nesting deeper than " + std::to_string(e.depth()) +
+                         " levels (brackets or indentation); no key of these files nests more than a few levels",
+                     line_of(*source, m.line));
   } catch (const YAML::Exception& e) {
     const SourceMark m = to_mark(e.mark);
     const std::string line = line_of(*source, m.line);
