@@ -13,6 +13,10 @@ namespace {
 constexpr char kMagic[16] = {'S', 'O', 'L', 'S', 'T', 'R', 'A', 'T', 'A', '-', 'C', 'K', 'P', 'T', '1', '\n'};
 constexpr std::size_t kHeaderBytes = sizeof kMagic + 3 * sizeof(std::uint64_t);
 constexpr std::size_t kSyncEvery = 64;
+/// Limits a header must respect (far above any real sweep: the scenario ceiling of a study is
+/// 10^8, and a record of 2^27 values would be 1 GiB per scenario).
+constexpr std::uint64_t kMaxRecordValues = std::uint64_t{1} << 27;
+constexpr std::uint64_t kMaxCheckpointScenarios = std::uint64_t{1} << 40;
 
 std::uint64_t record_checksum(std::uint64_t scenario, const double* v, std::size_t n) {
   return fnv1a(v, n * sizeof(double), fnv1a(&scenario, sizeof scenario));
@@ -115,6 +119,19 @@ CheckpointContents read_checkpoint(std::istream& in, const std::string& name) {
   CheckpointContents c;
   c.header = {h[0], h[1], h[2]};
   c.valid_bytes = kHeaderBytes;
+  // A damaged header must not make us allocate: a record longer than the file cannot be whole
+  // (found by tests/fuzz/fuzz_checkpoint: record_values = 2^29 asked for 4 GiB).
+  const std::streampos here = in.tellg();
+  in.seekg(0, std::ios::end);
+  const std::streamoff size = in.tellg();
+  in.seekg(here);
+  if (!in || size < 0) throw OutputError(path.string() + ": cannot read the checkpoint");
+  if (c.header.record_values > kMaxRecordValues || c.header.n_scenarios > kMaxCheckpointScenarios) {
+    throw OutputError(path.string() + ": not a solstrata sweep checkpoint (its header is damaged: " +
+                      std::to_string(c.header.n_scenarios) + " scenarios of " + std::to_string(c.header.record_values) +
+                      " values)");
+  }
+  if (c.header.record_values * sizeof(double) > static_cast<std::uint64_t>(size)) return c;
   std::vector<double> v(c.header.record_values);
   for (;;) {
     std::uint64_t scenario = 0, sum = 0;

@@ -184,6 +184,7 @@ std::vector<BadCase> catalogue() {
       {"deep brackets", {{"exp.yaml", deep_brackets}}, {"exp.yaml:3:", "nesting"}},
       {"deep indentation", {{"exp.yaml", deep_blocks}}, {"exp.yaml:", "nesting"}},
       {"binary garbage", {{"exp.yaml", bytes_garbage()}}, {"exp.yaml:"}},
+      {"a document starting with a comma", {{"exp.yaml", ", sun: 30\n"}}, {"exp.yaml:1:1:", "YAML syntax error"}},
       {"empty file", {{"exp.yaml", ""}}, {"exp.yaml", "no content"}},
       {"only a comment", {{"exp.yaml", "# nothing here\n"}}, {"exp.yaml", "no content"}},
       {"top level a list", {{"exp.yaml", "- sun\n- surface\n"}}, {"exp.yaml:1:", "mapping"}},
