@@ -254,6 +254,7 @@ TEST_CASE("kill -9 at random moments of a sweep, resumed after each, gives the c
     if (code == 0) fs::remove(dir / "out.h5");  // start over: the next kill needs a run to hit
   }
   CHECK(landed >= 1);
+  if (count_env) WARN(landed << " of " << kills << " kills hit a running sweep (clean run " << clean_ms << " ms)");
   const bool resume = fs::exists(dir / "out.h5.partial");
   const Outcome o = sh(dir.path(), std::string("run sweep.yaml -q -j 2 -o out.h5") + (resume ? " --resume" : ""));
   INFO(o.err);
