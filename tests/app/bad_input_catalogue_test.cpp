@@ -98,10 +98,10 @@ const std::string kWithProfile = kSun + "atmosphere:\n  profile: prof.yaml\n";  
 std::string alias_bomb() {
   std::string s = "a0: &a0 [lol, lol, lol, lol, lol, lol, lol, lol, lol]\n";
   for (int i = 1; i < 10; ++i) {
-    const std::string p = "*a" + std::to_string(i - 1);
-    s += "a" + std::to_string(i) + ": &a" + std::to_string(i) + " [" + p;
-    for (int k = 1; k < 9; ++k) s += ", " + p;
-    s += "]\n";
+    const std::string prev = std::to_string(i - 1), me = std::to_string(i);
+    s.append("a").append(me).append(": &a").append(me).append(" [*a").append(prev);
+    for (int k = 1; k < 9; ++k) s.append(", *a").append(prev);
+    s.append("]\n");
   }
   return kSun + s;  // the first alias-free unknown key a0 is on line 3
 }
