@@ -664,7 +664,8 @@ fs::path default_data_dir() {
 }
 
 std::string read_experiment_text(const fs::path& path) {
-  if (const std::string why = file_problem(path); !why.empty() && why != "does not exist") {
+  // A directory is refused by name; pipes (e.g. /dev/stdin) are read like files.
+  if (const std::string why = file_problem(path); why == "is a directory, not a file") {
     throw InputError(path.string(), {}, "", "the experiment file " + why);
   }
   std::ifstream in(path, std::ios::binary);

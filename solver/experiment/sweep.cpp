@@ -275,6 +275,9 @@ Study Study::parse(std::string text, const std::string& name, const fs::path& ba
       const fs::path path = fs::path(f.value).is_absolute() ? fs::path(f.value) : base_dir / f.value;
       std::error_code ec;
       if (fs::is_directory(path, ec)) throw s.impl_->doc->error(f, "scenario file '" + path.string() + "' is a directory");
+      if (fs::exists(path, ec) && !fs::is_regular_file(path, ec)) {
+        throw s.impl_->doc->error(f, "scenario file '" + path.string() + "' is not a regular file");
+      }
       std::ifstream csv(path, std::ios::binary);
       if (!csv) throw s.impl_->doc->error(f, "scenario file '" + path.string() + "' cannot be read");
       std::ostringstream csv_text;

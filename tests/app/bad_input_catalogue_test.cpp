@@ -227,6 +227,9 @@ std::vector<BadCase> catalogue() {
        {"exp.yaml:8:", "spectrum.solar_spectrum.file", "irradiance"}},
       {"spectrum binary garbage", {{"exp.yaml", kSun + kSpectrumWithFile}, {"sun.csv", bytes_garbage()}}, {"exp.yaml:8:", "spectrum.solar_spectrum.file", "sun.csv"}},
       // ----- scenario lists (sweep.scenario_file on line 5)
+      {"scenario file a device", {{"exp.yaml", kSun + "aerosol: {type: urban_haze, optical_depth: 0.2}\nsweep:\n  scenario_file: /dev/zero\n"}},
+       {"exp.yaml:5:", "sweep.scenario_file", "not a regular file"}},
+      {"profile a device", {{"exp.yaml", kSun + "atmosphere:\n  profile: /dev/zero\n"}}, {"exp.yaml:4:", "atmosphere.profile", "not a regular file"}},
       {"scenario file missing", {{"exp.yaml", kSun + kScenarioSweep}}, {"exp.yaml:5:", "sweep.scenario_file", "list.csv"}},
       {"scenario text in a number", {{"exp.yaml", kSun + kScenarioSweep}, {"list.csv", "aerosol.optical_depth\n0.1\n0.2x\n"}},
        {"exp.yaml:5:", "sweep.scenario_file", "list.csv line 3"}},
