@@ -14,7 +14,9 @@
 #include "experiment/sweep.hpp"
 #include "experiment/sweep_run.hpp"
 #include "io/accuracy_file.hpp"
+#include "io/atomic_file.hpp"
 #include "io/checkpoint.hpp"
+#include "io/output_lock.hpp"
 #include "io/result_fields.hpp"
 #include "io/result_file.hpp"
 #include "io/sweep_file.hpp"
@@ -147,6 +149,8 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
     } else {
       writer.emplace(ckpt, io::CheckpointHeader{hash, n, record_values}, false);
     }
+    // Test hook for a full disk: the checkpoint cannot grow past this many bytes (ENOSPC).
+    if (const char* limit = std::getenv("SOLSTRATA_TEST_DISK_LIMIT_BYTES")) writer->set_byte_limit(std::strtoull(limit, nullptr, 10));
     long appended = 0;
     const auto record = [&](const experiment::ScenarioResult& s) {
       writer->append(s.index, io::scenario_record(s, with_effect));
@@ -272,12 +276,37 @@ int run_command(const RunOptions& o) {
                  "the file holds the band fluxes\n";
   }
   // Every output path is checked before the first solve: a bad one fails at once, not after the work.
-  for (const auto& [path, what] : {std::pair{e.output.file, "output file"}, std::pair{e.output.csv, "CSV file"}}) {
-    if (path.empty()) continue;
-    if (const std::string m = output_path_problem(path); !m.empty()) {
-      std::cerr << "solstrata run: " << what << " '" << path.string() << "': " << m << "\n";
+  struct OutputPath {
+    const std::filesystem::path& path;
+    const char* what;
+    bool from_file;  // written in the experiment file (not on the command line)
+    experiment::SourceMark mark;
+    const char* key;
+  };
+  for (const OutputPath& p : {OutputPath{e.output.file, "output file", o.output.empty(), e.output.file_mark, "output.file"},
+                              OutputPath{e.output.csv, "CSV file", o.csv.empty(), e.output.csv_mark, "output.csv"}}) {
+    if (p.path.empty()) continue;
+    if (const std::string m = output_path_problem(p.path); !m.empty()) {
+      if (p.from_file && p.mark.known()) {
+        // Named where the experiment file gives it: file, line and key.
+        std::cerr << experiment::InputError(o.experiment, p.mark, p.key, p.what + std::string(" '") + p.path.string() + "': " + m).what()
+                  << "\n";
+      } else {
+        std::cerr << "solstrata run: " << p.what << " '" << p.path.string() << "': " << m << "\n";
+      }
       return kExitBadInput;
     }
+  }
+  // One run per output file at a time: a second run on the same file refuses before any work.
+  std::optional<io::OutputLock> lock;
+  try {
+    lock.emplace(e.output.file);
+    // Left by a killed run (of the output file and of a sweep's checkpoint); nobody else writes them now.
+    io::remove_stale_temporaries(e.output.file);
+    io::remove_stale_temporaries(e.output.file.string() + ".partial");
+  } catch (const std::exception& ex) {
+    std::cerr << "solstrata run: " << ex.what() << "\n";
+    return kExitBadInput;
   }
   if (!study->plan().axes.empty() || study->is_time_series()) return run_sweep(*study, e, o);
   // A single run is short and leaves nothing to resume: signals act as usual again.

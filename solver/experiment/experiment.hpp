@@ -98,6 +98,8 @@ struct OutputConfig {
   /// output.variables: variable names and groups to write (experiment/output_variables.hpp);
   /// empty = everything. Coordinates and the band table are always written.
   std::vector<std::string> variables;
+  SourceMark file_mark;        ///< where output.file is written in the experiment (unknown: default)
+  SourceMark csv_mark;         ///< where output.csv is written (unknown: not in the file)
 };
 
 /// Which top-of-atmosphere solar spectrum a run uses.
@@ -223,6 +225,10 @@ void place_sun(Experiment& e, double t_unix);
 
 /// The most steps one time series may have (a year of 1-minute steps fits).
 inline constexpr std::size_t kMaxTimeSteps = 1'000'000;
+
+/// Reads the text of an atmosphere profile file (the format of profiles/*.yaml); `name` stands
+/// for the file in messages. Throws InputError (file, line, column, key) on any problem.
+atmos::Profile parse_profile(std::string text, const std::string& name);
 
 /// Every top-level key of an experiment file, with a one-line description (for help texts and
 /// the key reference test).

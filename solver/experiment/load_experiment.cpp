@@ -40,6 +40,16 @@ const std::vector<std::string> kShapes = {"exponential", "boundary_layer", "per_
 /// Name of the built-in standard profile generated on the fly.
 constexpr const char* kBuiltinProfile = "us_standard_1976";
 
+/// Why `p` cannot be read as an input file: "does not exist", "is a directory", ...; "" if it can.
+std::string file_problem(const fs::path& p) {
+  std::error_code ec;
+  const fs::file_status st = fs::status(p, ec);
+  if (!fs::exists(st)) return "does not exist";
+  if (fs::is_directory(st)) return "is a directory, not a file";
+  if (!fs::is_regular_file(st)) return "is not a regular file";
+  return {};
+}
+
 fs::path resolve(const fs::path& base, const std::string& p) {
   const fs::path q(p);
   return q.is_absolute() ? q : base / q;
@@ -139,12 +149,11 @@ atmos::Profile read_levels(Section& s) {
   return p;
 }
 
-/// Reads a profile file (the format written by the standard-atmosphere generator).
-atmos::Profile read_profile_file(const fs::path& path) {
-  const Document doc = Document::load_file(path);
+/// Reads a profile document (the format written by the standard-atmosphere generator).
+atmos::Profile read_profile_document(const Document& doc, const std::string& default_name) {
   Section root = doc.root();
   atmos::Profile p;
-  const std::string name = root.optional_string("name", path.stem().string()).value;
+  const std::string name = root.optional_string("name", default_name).value;
   const double lat = root.optional_number("latitude_deg", 45.0, Range::closed(-90, 90), "degrees").value;
   const double co2 = root.optional_number("co2_ppmv", 400.0, Range::closed(0, 1e5), "ppmv").value;
   Section lv = root.subsection("levels");
@@ -155,6 +164,10 @@ atmos::Profile read_profile_file(const fs::path& path) {
   p.co2_ppmv = co2;
   if (const std::string m = p.validate(); !m.empty()) throw doc.error(lv.mark(), "levels", m);
   return p;
+}
+
+atmos::Profile read_profile_file(const fs::path& path) {
+  return read_profile_document(Document::load_file(path), path.stem().string());
 }
 
 void read_absorbers(Section& s, Experiment& e, const fs::path& base);
@@ -179,11 +192,9 @@ void read_atmosphere(Section& s, Experiment& e, const fs::path& base, ProfileCac
       e.profile_origin = "built-in U.S. Standard Atmosphere 1976 (generated)";
     } else {
       const fs::path path = resolve(base, prof.value);
-      std::error_code ec;
-      if (!fs::is_regular_file(path, ec)) {
-        throw doc.error(prof, "profile file '" + path.string() +
-                                  "' does not exist; give a path relative to the experiment file, or '" +
-                                  kBuiltinProfile + "'");
+      if (const std::string why = file_problem(path); !why.empty()) {
+        throw doc.error(prof, "profile file '" + path.string() + "' " + why +
+                                  "; give a path relative to the experiment file, or '" + kBuiltinProfile + "'");
       }
       e.profile = cache ? cache->get(path, [&] { return read_profile_file(path); }) : read_profile_file(path);
       e.profile_origin = path.string();
@@ -671,9 +682,8 @@ void read_spectrum(Section& s, Experiment& e, const fs::path& base) {
     sol->check_no_unknown_keys();
     e.solar = SolarChoice::file;
     e.solar_file = resolve(base, file.value);
-    std::error_code ec;
-    if (!fs::is_regular_file(e.solar_file, ec)) {
-      throw doc.error(file, "solar spectrum file '" + e.solar_file.string() + "' does not exist");
+    if (const std::string why = file_problem(e.solar_file); !why.empty()) {
+      throw doc.error(file, "solar spectrum file '" + e.solar_file.string() + "' " + why);
     }
     // Coverage of the grid, checked here so that a run never starts on a short table.
     spectrum_range range;
@@ -920,11 +930,15 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
     fs::path stem = fs::path(name).stem();
     e.output.file = stem.string() + ".h5";
     if (auto o = root.optional_subsection("output")) {
-      e.output.file = o->optional_string("file", e.output.file.string()).value;
+      const auto file = o->optional_string("file", e.output.file.string());
+      e.output.file = file.value;
+      e.output.file_mark = file.mark;
       const bool spectral_given = o->has("spectral");
       const Located<bool> spectral = o->optional_bool("spectral", false);
       e.output.spectral = spectral.value;
-      e.output.csv = o->optional_string("csv", "").value;
+      const auto csv = o->optional_string("csv", "");
+      e.output.csv = csv.value;
+      e.output.csv_mark = csv.mark;
       if (o->has("variables")) read_output_variables(*o, e.output, spectral_given ? &spectral : nullptr);
       o->check_no_unknown_keys();
     }
@@ -945,6 +959,10 @@ void place_sun(Experiment& e, double t_unix) {
   e.distance.factor = pos.distance_factor;
 }
 
+atmos::Profile parse_profile(std::string text, const std::string& name) {
+  return read_profile_document(Document::parse(std::move(text), name), fs::path(name).stem().string());
+}
+
 fs::path default_data_dir() {
   if (const char* env = std::getenv("SOLSTRATA_DATA_DIR"); env && *env) return fs::path(env);
   // Installed: <prefix>/bin/solstrata finds <prefix>/share/solstrata/data (cmake --install).
@@ -962,6 +980,10 @@ fs::path default_data_dir() {
 }
 
 std::string read_experiment_text(const fs::path& path) {
+  // A directory is refused by name; pipes (e.g. /dev/stdin) are read like files.
+  if (const std::string why = file_problem(path); why == "is a directory, not a file") {
+    throw InputError(path.string(), {}, "", "the experiment file " + why);
+  }
   std::ifstream in(path, std::ios::binary);
   if (!in) {
     throw InputError(path.string(), {}, "", "cannot open the experiment file (does it exist and is it readable?)");

@@ -1,11 +1,13 @@
 #include "experiment/sweep.hpp"
 
 #include <algorithm>
+#include <cerrno>
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
 #include <fstream>
 #include <set>
+#include <stdexcept>
 #include <sstream>
 
 #include <yaml-cpp/yaml.h>
@@ -22,7 +24,10 @@ namespace {
 namespace fs = std::filesystem;
 
 /// Reads the values of one sweep item: an explicit list, or a range {from, to, count, spacing}.
-SweepParameter read_parameter(Section& item) {
+/// `max_count`: the most values the ceiling kMaxScenarios leaves for this axis (given the axes
+/// read before it), so that a range of too many values is refused before it is expanded.
+/// `shape_before`: the sizes of those axes ("10 x 20"), for the message.
+SweepParameter read_parameter(Section& item, std::size_t max_count, const std::string& shape_before = {}) {
   const Document doc = item.document();
   SweepParameter p;
   const Located<std::string> path = item.required_string("parameter");
@@ -40,6 +45,12 @@ SweepParameter read_parameter(Section& item) {
     const auto count = r.required_integer("count", Range::closed(1, 1e7));
     const auto spacing = r.optional_choice("spacing", "linear", {"linear", "log"});
     r.check_no_unknown_keys();
+    if (static_cast<std::size_t>(count.value) > max_count) {
+      const std::string shape = (shape_before.empty() ? "" : shape_before + " x ") + std::to_string(count.value);
+      throw doc.error(count, "the sweep has " + shape + std::string(max_count == 0 ? " x ..." : "") + " scenarios or more, more than the " +
+                                 std::to_string(kMaxScenarios) + " one study may have (this range can have at most " +
+                                 std::to_string(max_count) + " values); split it into several studies");
+    }
     const bool log = spacing.value == "log";
     if (log && !(from.value > 0 && to.value > 0)) {
       throw doc.error(from, "a log range needs from > 0 and to > 0");
@@ -275,6 +286,74 @@ TimePlan make_time_plan(const Experiment& base) {
 
 }  // namespace
 
+SweepAxis parse_scenario_csv(const std::string& text, const std::string& file, const SourceMark& mark) {
+  // A UTF-8 byte order mark (written by some spreadsheet programs) is not part of the header.
+  std::istringstream csv(text.rfind("\xEF\xBB\xBF", 0) == 0 ? text.substr(3) : text);
+  const auto trim = [](std::string& c) {
+    while (!c.empty() && (c.back() == '\r' || c.back() == ' ' || c.back() == '\t')) c.pop_back();
+    std::size_t b = 0;
+    while (b < c.size() && (c[b] == ' ' || c[b] == '\t')) ++b;
+    c.erase(0, b);
+  };
+  const auto fail = [&](std::size_t row, const std::string& what) {
+    throw std::invalid_argument(file + " line " + std::to_string(row) + ": " + what);
+  };
+  std::string line;
+  std::size_t row = 0;
+  bool have_header = false;
+  // Comment lines ('#') and blank lines may stand before the header too.
+  while (std::getline(csv, line)) {
+    ++row;
+    trim(line);
+    if (!line.empty() && line[0] != '#') {
+      have_header = true;
+      break;
+    }
+  }
+  if (!have_header) throw std::invalid_argument("scenario file '" + file + "' has no header line (the swept parameters)");
+  SweepAxis axis;
+  {
+    std::stringstream hs(line);
+    std::string col;
+    while (std::getline(hs, col, ',')) {
+      trim(col);
+      if (col.empty()) fail(row, "empty column name in the header (expected key paths such as aerosol.optical_depth)");
+      axis.parameters.push_back({col, {}, mark});
+    }
+    if (line.back() == ',') fail(row, "empty column name in the header (a trailing comma)");
+  }
+  while (std::getline(csv, line)) {
+    ++row;
+    trim(line);
+    if (line.empty() || line[0] == '#') continue;
+    std::stringstream rs(line);
+    std::string cell;
+    std::size_t c = 0;
+    while (std::getline(rs, cell, ',')) {
+      if (c >= axis.parameters.size()) fail(row, "more cells than header columns (" + std::to_string(axis.parameters.size()) + ")");
+      trim(cell);
+      const char* begin = cell.c_str();
+      char* end = nullptr;
+      errno = 0;
+      const double v = std::strtod(begin, &end);
+      if (cell.empty() || end == begin || *end != '\0' || errno == ERANGE || !std::isfinite(v)) {
+        fail(row, "'" + cell + "' in column '" + axis.parameters[c].path + "' is not a finite number");
+      }
+      axis.parameters[c].values.push_back(v);
+      ++c;
+    }
+    if (line.back() == ',') fail(row, "empty last cell (a trailing comma)");
+    if (c != axis.parameters.size()) {
+      fail(row, "expected " + std::to_string(axis.parameters.size()) + " cells, found " + std::to_string(c));
+    }
+    if (axis.parameters.front().values.size() > kMaxScenarios) {
+      fail(row, "more than " + std::to_string(kMaxScenarios) + " scenarios, the most one study may have");
+    }
+  }
+  if (axis.parameters.front().values.empty()) throw std::invalid_argument("scenario file '" + file + "' has no scenarios");
+  return axis;
+}
+
 std::size_t SweepPlan::n_scenarios() const {
   if (time_series) return time.n_steps + time.n_nodes();
   std::size_t n = 1;
@@ -344,46 +423,22 @@ Study Study::parse(std::string text, const std::string& name, const fs::path& ba
       if (sw.has("grid") || sw.has("zip")) throw sw.error("scenario_file", "give either a scenario_file or grid/zip axes, not both");
       const Located<std::string> f = sw.required_string("scenario_file");
       const fs::path path = fs::path(f.value).is_absolute() ? fs::path(f.value) : base_dir / f.value;
-      std::ifstream csv(path);
+      std::error_code ec;
+      if (fs::is_directory(path, ec)) throw s.impl_->doc->error(f, "scenario file '" + path.string() + "' is a directory");
+      if (fs::exists(path, ec) && !fs::is_regular_file(path, ec)) {
+        throw s.impl_->doc->error(f, "scenario file '" + path.string() + "' is not a regular file");
+      }
+      std::ifstream csv(path, std::ios::binary);
       if (!csv) throw s.impl_->doc->error(f, "scenario file '" + path.string() + "' cannot be read");
-      std::string line;
-      int row = 0;
-      // Comment lines ('#') and blank lines may stand before the header too.
-      while (std::getline(csv, line)) {
-        ++row;
-        if (!line.empty() && line.back() == '\r') line.pop_back();
-        if (!line.empty() && line[0] != '#') break;
-      }
+      std::ostringstream csv_text;
+      csv_text << csv.rdbuf();
+      if (csv.bad()) throw s.impl_->doc->error(f, "scenario file '" + path.string() + "' cannot be read");
       SweepAxis axis;
-      {
-        std::stringstream hs(line);
-        std::string col;
-        while (std::getline(hs, col, ',')) {
-          while (!col.empty() && (col.back() == '\r' || col.back() == ' ')) col.pop_back();
-          while (!col.empty() && col.front() == ' ') col.erase(col.begin());
-          axis.parameters.push_back({col, {}, f.mark});
-        }
+      try {
+        axis = parse_scenario_csv(csv_text.str(), path.string(), f.mark);
+      } catch (const std::invalid_argument& ex) {
+        throw s.impl_->doc->error(f, ex.what());
       }
-      while (std::getline(csv, line)) {
-        ++row;
-        if (line.empty() || line[0] == '#') continue;
-        std::stringstream rs(line);
-        std::string cell;
-        std::size_t c = 0;
-        while (std::getline(rs, cell, ',')) {
-          if (c >= axis.parameters.size()) throw s.impl_->doc->error(f, path.string() + " line " + std::to_string(row) + ": more cells than header columns");
-          try {
-            std::size_t used = 0;
-            const double v = std::stod(cell, &used);
-            axis.parameters[c].values.push_back(v);
-          } catch (...) {
-            throw s.impl_->doc->error(f, path.string() + " line " + std::to_string(row) + ": '" + cell + "' is not a number");
-          }
-          ++c;
-        }
-        if (c != axis.parameters.size()) throw s.impl_->doc->error(f, path.string() + " line " + std::to_string(row) + ": expected " + std::to_string(axis.parameters.size()) + " cells");
-      }
-      if (axis.parameters.empty() || axis.parameters.front().values.empty()) throw s.impl_->doc->error(f, "scenario file '" + path.string() + "' has no scenarios");
       s.plan_.axes.push_back(std::move(axis));
       s.plan_.from_list = true;
     } else {
@@ -392,12 +447,19 @@ Study Study::parse(std::string text, const std::string& name, const fs::path& ba
         throw sw.error("grid", "a sweep needs 'grid' axes, 'zip' lists or a 'scenario_file'");
       }
       if (sw.has("grid")) {
-        for (Section& item : sw.sequence("grid")) s.plan_.axes.push_back({{read_parameter(item)}});
+        std::size_t product = 1;
+        std::string shape;
+        for (Section& item : sw.sequence("grid")) {
+          s.plan_.axes.push_back({{read_parameter(item, kMaxScenarios / product, shape)}});
+          shape += (shape.empty() ? "" : " x ") + std::to_string(s.plan_.axes.back().size());
+          product *= std::max<std::size_t>(1, std::min(s.plan_.axes.back().size(), kMaxScenarios));
+          if (product > kMaxScenarios) product = kMaxScenarios + 1;
+        }
       }
       if (sw.has("zip")) {
         SweepAxis zip;
         for (Section& item : sw.sequence("zip")) {
-          SweepParameter p = read_parameter(item);
+          SweepParameter p = read_parameter(item, kMaxScenarios);
           if (!zip.parameters.empty() && p.values.size() != zip.parameters.front().values.size()) {
             throw s.impl_->doc->error(p.mark, "sweep.zip", "zipped lists must have the same length: '" + p.path + "' has " +
                                                                  std::to_string(p.values.size()) + " values, '" +
@@ -455,10 +517,13 @@ Study Study::parse(std::string text, const std::string& name, const fs::path& ba
     if (typed) {
       for (const SweepParameter* p : s.plan_.parameters()) {
         const TypedKey& k = *typed_key(p->path);
-        for (double v : p->values) {
+        for (std::size_t j = 0; j < p->values.size(); ++j) {
+          const double v = p->values[j];
           if (!k.range.contains(v)) {
-            throw s.impl_->doc->error(p->mark, "sweep", "value " + format_number(v) + " of '" + p->path +
-                                                           "' is outside its allowed range: " + k.range.describe(k.name));
+            // In a scenario list the value's position is the scenario number.
+            const std::string where = s.plan_.from_list ? " in scenario " + std::to_string(j) : "";
+            throw s.impl_->doc->error(p->mark, "sweep", "value " + format_number(v) + " of '" + p->path + "'" + where +
+                                                           " is outside its allowed range: " + k.range.describe(k.name));
           }
         }
       }

@@ -71,6 +71,12 @@ struct SweepPlan {
   [[nodiscard]] std::vector<std::pair<std::string, double>> assignment(std::size_t i) const;
 };
 
+/// Parses the text of a scenario list (sweep.scenario_file): comment ('#') and blank lines, a
+/// header of key paths separated by commas, then one row of numbers per scenario. `file` names
+/// it in messages and `mark` (the scenario_file entry) goes into each parameter. Throws
+/// std::invalid_argument "FILE line N: ..." on a malformed table.
+SweepAxis parse_scenario_csv(const std::string& text, const std::string& file, const SourceMark& mark);
+
 /// An experiment file with its sweep: yields the resolved Experiment of each scenario, and of the
 /// same scenario without aerosol (for aerosol radiative effects).
 class Study {

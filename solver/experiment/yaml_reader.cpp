@@ -1,5 +1,7 @@
 #include "experiment/yaml_reader.hpp"
 
+#include <yaml-cpp/depthguard.h>
+#include <yaml-cpp/eventhandler.h>
 #include <yaml-cpp/yaml.h>
 
 #include <algorithm>
@@ -158,12 +160,58 @@ Document Document::load_file(const std::filesystem::path& path) {
   return parse(text.str(), name);
 }
 
+namespace {
+
+/// Counts the parser's events and gives up past a budget. A finite text yields at most a few
+/// events per byte, but yaml-cpp 0.7 loops for ever, building nodes until memory runs out, on a
+/// document whose first token is a ',' (found by tests/fuzz/fuzz_experiment: ", a"). A first
+/// pass with this handler (no tree is built) turns that into an error before YAML::LoadAll runs.
+class EventBudget : public YAML::EventHandler {
+ public:
+  struct Exhausted {
+    YAML::Mark mark;
+  };
+  explicit EventBudget(std::size_t limit) : left_(limit) {}
+  void OnDocumentStart(const YAML::Mark& m) override { tick(m); }
+  void OnDocumentEnd() override {}
+  void OnNull(const YAML::Mark& m, YAML::anchor_t) override { tick(m); }
+  void OnAlias(const YAML::Mark& m, YAML::anchor_t) override { tick(m); }
+  void OnScalar(const YAML::Mark& m, const std::string&, YAML::anchor_t, const std::string&) override { tick(m); }
+  void OnSequenceStart(const YAML::Mark& m, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override { tick(m); }
+  void OnSequenceEnd() override {}
+  void OnMapStart(const YAML::Mark& m, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override { tick(m); }
+  void OnMapEnd() override {}
+
+ private:
+  void tick(const YAML::Mark& m) {
+    if (left_-- == 0) throw Exhausted{m};
+  }
+  std::size_t left_;
+};
+
+}  // namespace
+
 Document Document::parse(std::string text, std::string name) {
   auto source = std::make_shared<detail::Source>();
   source->name = std::move(name);
   source->text = std::move(text);
   source->lines = split_lines(source->text);
   try {
+    {
+      std::istringstream in(source->text);
+      YAML::Parser parser(in);
+      EventBudget budget(4 * source->text.size() + 64);
+      try {
+        while (parser.HandleNextDocument(budget)) {
+        }
+      } catch (const EventBudget::Exhausted& e) {
+        const SourceMark m = to_mark(e.mark);
+        throw InputError(source->name, m, {},
+                         "YAML syntax error: the document cannot be parsed (it starts with ',' or is otherwise "
+                         "malformed); expected a mapping of keys to values",
+                         line_of(*source, m.line));
+      }
+    }
     std::vector<YAML::Node> docs = YAML::LoadAll(source->text);
     if (docs.size() > 1) {
       const SourceMark m = to_mark(docs[1].Mark());
@@ -172,6 +220,12 @@ Document Document::parse(std::string text, std::string name) {
                        line_of(*source, m.line));
     }
     if (!docs.empty()) source->root = docs.front();
+  } catch (const YAML::DeepRecursion& e) {
+    const SourceMark m = to_mark(e.mark);
+    throw InputError(source->name, m, {},
+                     "YAML nesting deeper than " + std::to_string(e.depth()) +
+                         " levels (brackets or indentation); no key of these files nests more than a few levels",
+                     line_of(*source, m.line));
   } catch (const YAML::Exception& e) {
     const SourceMark m = to_mark(e.mark);
     const std::string line = line_of(*source, m.line);

@@ -76,4 +76,17 @@ void AtomicOutput::commit() {
   committed_ = true;
 }
 
+std::size_t remove_stale_temporaries(const std::filesystem::path& final_path) {
+  namespace fs = std::filesystem;
+  const fs::path dir = final_path.has_parent_path() ? final_path.parent_path() : fs::path(".");
+  const std::string prefix = final_path.filename().string() + ".tmp-";
+  std::size_t removed = 0;
+  std::error_code ec;
+  for (fs::directory_iterator it(dir, ec), end; !ec && it != end; it.increment(ec)) {
+    const std::string name = it->path().filename().string();
+    if (name.rfind(prefix, 0) == 0 && it->is_regular_file(ec) && fs::remove(it->path(), ec)) ++removed;
+  }
+  return removed;
+}
+
 }  // namespace solstrata::io

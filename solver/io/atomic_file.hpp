@@ -45,4 +45,9 @@ class AtomicOutput {
   bool active_ = true;
 };
 
+/// Removes the temporaries "<final>.tmp-*" that a killed process left beside `final_path`
+/// (a process that dies by SIGKILL cannot remove its own). Call it only while holding the
+/// OutputLock of `final_path`: then no live process is writing one. Returns how many it removed.
+std::size_t remove_stale_temporaries(const std::filesystem::path& final_path);
+
 }  // namespace solstrata::io

@@ -6,6 +6,7 @@
 #include <cstdint>
 #include <cstdio>
 #include <filesystem>
+#include <iosfwd>
 #include <map>
 #include <span>
 #include <string>
@@ -40,12 +41,17 @@ class CheckpointWriter {
   [[nodiscard]] std::size_t records_written() const { return written_; }
   /// Forces everything appended so far to disk (fsync), e.g. before the file is read back.
   void flush();
+  /// Test hook for a full disk: from now on, bytes that would take the file past `bytes` are not
+  /// written and append fails as write(2) does on a full disk (ENOSPC), leaving a torn record.
+  void set_byte_limit(std::uint64_t bytes) { byte_limit_ = bytes; }
 
  private:
   std::FILE* f_ = nullptr;
   std::filesystem::path path_;
   std::uint64_t record_values_ = 0;
   std::size_t written_ = 0;
+  std::uint64_t file_bytes_ = 0;  ///< length of the file so far
+  std::uint64_t byte_limit_ = ~std::uint64_t{0};
 };
 
 /// The valid contents of a checkpoint file.
@@ -58,6 +64,8 @@ struct CheckpointContents {
 /// Reads a checkpoint: header and every complete record whose checksum holds, stopping at the
 /// first torn or corrupt one. Throws OutputError when the file is not a checkpoint.
 CheckpointContents read_checkpoint(const std::filesystem::path& path);
+/// As read_checkpoint, from a stream; `name` stands for the file in messages.
+CheckpointContents read_checkpoint(std::istream& in, const std::string& name);
 
 /// Reads the values of one scenario record (offset from read_checkpoint).
 std::vector<double> read_checkpoint_record(const std::filesystem::path& path, std::uint64_t offset,

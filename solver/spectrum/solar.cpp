@@ -4,6 +4,8 @@
 #include <cerrno>
 #include <cmath>
 #include <cstdlib>
+#include <cstring>
+#include <filesystem>
 #include <fstream>
 #include <numbers>
 #include <map>
@@ -94,8 +96,21 @@ std::string TabulatedSpectrum::validate() const {
 }
 
 TabulatedSpectrum read_spectrum_csv(const std::string& path, std::string_view column) {
-  std::ifstream in(path);
-  if (!in) throw std::runtime_error(path + ": cannot open the spectrum file");
+  std::error_code ec;
+  if (std::filesystem::is_directory(path, ec)) {
+    throw std::runtime_error(path + ": is a directory; expected a spectrum file (CSV)");
+  }
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw std::runtime_error(path + ": cannot open the spectrum file: " + std::strerror(errno));
+  std::ostringstream text;
+  text << in.rdbuf();
+  if (in.bad()) throw std::runtime_error(path + ": cannot read the spectrum file: " + std::strerror(errno));
+  return parse_spectrum_csv(text.str(), path, column);
+}
+
+TabulatedSpectrum parse_spectrum_csv(const std::string& text, const std::string& path, std::string_view column) {
+  // A UTF-8 byte order mark (written by some spreadsheet programs) is not part of the header.
+  std::istringstream in(text.rfind("\xEF\xBB\xBF", 0) == 0 ? text.substr(3) : text);
   std::string line;
   std::size_t line_no = 0;
   std::vector<std::string> header;

@@ -44,6 +44,8 @@ class SpectrumColumnError : public std::runtime_error {
 /// the file and line on any problem (missing file, unknown column, bad number, non-increasing
 /// wavelength, negative irradiance).
 TabulatedSpectrum read_spectrum_csv(const std::string& path, std::string_view column = {});
+/// As read_spectrum_csv, from the text of such a file; `path` names it in messages.
+TabulatedSpectrum parse_spectrum_csv(const std::string& text, const std::string& path, std::string_view column = {});
 
 /// W m-2: integral of the piecewise-linear spectrum over [lower_nm, upper_nm] (exact for the
 /// linear interpolant: the trapezoid rule on the native samples, cut at the limits). Outside the
