@@ -102,12 +102,13 @@ TEST_CASE("the float kernel follows the pseudo-spherical beam like the double ke
   Columns col(64, 10);
   col.path.assign(10 * 64, 0.0);
   for (std::size_t p = 0; p < 64; ++p) {
-    col.mu0[p] = 0.05 + 0.9 * p / 63.0;
+    col.mu0[p] = 0.05 + 0.9 * static_cast<double>(p) / 63.0;
     for (std::size_t l = 0; l < 10; ++l) {
       col.tau[l * 64 + p] = 0.05;
       col.omega[l * 64 + p] = 0.9;
       col.g[l * 64 + p] = 0.6;
-      col.path[l * 64 + p] = 1.0 / col.mu0[p] * (1.0 - 0.01 * l) > 1.0 ? 1.0 / col.mu0[p] * (1.0 - 0.01 * l) : 1.0;
+      const double m = 1.0 / col.mu0[p] * (1.0 - 0.01 * static_cast<double>(l));
+      col.path[l * 64 + p] = m > 1.0 ? m : 1.0;
     }
   }
   col.solve(Closure::delta_eddington, true);
