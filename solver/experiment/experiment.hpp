@@ -15,6 +15,7 @@
 #include "rt/closure.hpp"
 #include "spectrum/grid.hpp"
 #include "sun/earth_sun.hpp"
+#include "sun/position.hpp"
 #include "sun/tilted_plane.hpp"
 
 namespace solstrata::experiment {
@@ -217,6 +218,11 @@ std::string read_experiment_text(const std::filesystem::path& path);
 Experiment parse_experiment(std::string text, const std::string& name,
                             const std::filesystem::path& base_dir, ProfileCache* profiles = nullptr,
                             std::optional<double> step_time_unix = std::nullopt);
+
+/// The site of `e` as the solar-position code needs it, with the air that refracts the sun: the
+/// profile's surface pressure and temperature (atmosphere mode), else standard air (1013.25 hPa,
+/// 15 C).
+sun::Site refraction_site(const Experiment& e);
 
 /// Sets the sun of `e` from the instant `t_unix` (s since 1970-01-01T00:00:00Z) at its site:
 /// apparent zenith (refraction at the profile's surface pressure and temperature), azimuth,

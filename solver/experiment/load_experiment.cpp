@@ -370,16 +370,6 @@ void read_aerosol(Section& s, Experiment& e) {
   }
 }
 
-/// Refraction air at the site: the profile's surface (atmosphere mode), else standard air.
-sun::Site refraction_site(const Experiment& e) {
-  sun::Site site{e.site.latitude_deg, e.site.longitude_deg, 1013.25, 15.0};
-  if (!e.given_optics_mode && e.profile.n_levels() >= 2) {
-    site.pressure_hpa = e.profile.pressure_hpa.back();
-    site.temperature_c = e.profile.temperature_k.back() - 273.15;
-  }
-  return site;
-}
-
 void read_sun(Section& s, Experiment& e, bool series, std::optional<double> step_time) {
   const bool has_zenith = s.has("solar_zenith_deg"), has_time = s.has("time");
   if (series) {
@@ -946,6 +936,15 @@ Experiment parse_experiment(std::string text, const std::string& name, const fs:
   (void)root.has("sweep");  // read by Study (experiment/sweep.hpp)
   root.check_no_unknown_keys();
   return e;
+}
+
+sun::Site refraction_site(const Experiment& e) {
+  sun::Site site{e.site.latitude_deg, e.site.longitude_deg, 1013.25, 15.0};
+  if (!e.given_optics_mode && e.profile.n_levels() >= 2) {
+    site.pressure_hpa = e.profile.pressure_hpa.back();
+    site.temperature_c = e.profile.temperature_k.back() - 273.15;
+  }
+  return site;
 }
 
 void place_sun(Experiment& e, double t_unix) {

@@ -225,11 +225,7 @@ TimePlan make_time_plan(const Experiment& base) {
   TimePlan tp;
   tp.n_steps = ts.times_unix.size();
   if (!ts.daily_totals) return tp;
-  sun::Site site{base.site.latitude_deg, base.site.longitude_deg, 1013.25, 15.0};
-  if (!base.given_optics_mode) {
-    site.pressure_hpa = base.profile.pressure_hpa.back();
-    site.temperature_c = base.profile.temperature_k.back() - 273.15;
-  }
+  const sun::Site site = refraction_site(base);
   const double offset = 60.0 * ts.utc_offset_minutes;
   const auto local_midnight = [&](double t) { return std::floor((t + offset) / 86400.0) * 86400.0 - offset; };
   const double first = local_midnight(ts.times_unix.front()), last = local_midnight(ts.times_unix.back());

@@ -28,16 +28,6 @@ constexpr const char* kTimeUnits = "seconds since 1970-01-01 00:00:00";
 /// CF calendar: the proleptic Gregorian calendar (what the ISO 8601 reader computes in).
 constexpr const char* kCalendar = "proleptic_gregorian";
 
-/// The site as the solar-position code sees it (refraction air from the base profile's surface).
-sun::Site site_of(const experiment::Experiment& e) {
-  sun::Site s{e.site.latitude_deg, e.site.longitude_deg, 1013.25, 15.0};
-  if (!e.given_optics_mode && e.profile.n_levels() >= 2) {
-    s.pressure_hpa = e.profile.pressure_hpa.back();
-    s.temperature_c = e.profile.temperature_k.back() - 273.15;
-  }
-  return s;
-}
-
 /// A daily quantity: its name, unit, description, the record field it integrates and a scale.
 struct DailyQuantity {
   const char* name;
@@ -176,7 +166,6 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
 
   // Daily totals: sum of weight x flux over each day's quadrature nodes.
   const std::size_t n_days = tp.day_start.size();
-  std::size_t daily_written = 0;
   if (n_days > 0) {
     w.add_coordinate("day", tp.day_start,
                      {kTimeUnits, "start of the local calendar day (local midnight, UTC offset of the first step)", "time"});
@@ -223,11 +212,10 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
       if (std::string(kDaily[q].field) == "plane_global_irradiance") {
         w.set_attribute(kDaily[q].name, "caution", sun::kPlaneCaution);
       }
-      ++daily_written;
     }
     // Extraterrestrial (TOA) insolation on a horizontal surface: geometry only.
     std::vector<double> toa(n_days), daylight(n_days);
-    const sun::Site site = site_of(base);
+    const sun::Site site = experiment::refraction_site(base);
     for (std::size_t d = 0; d < n_days; ++d) {
       toa[d] = s0 > 0.0 || !partial ? sun::extraterrestrial_insolation(site, tp.day_start[d], tp.day_start[d] + 86400.0, s0) * 1e-6
                                     : kFill;
@@ -267,7 +255,6 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
     w.set_attribute("", "plane_sky_diffuse_model", std::string(sun::to_string(base.plane.sky)));
     w.set_attribute("", "plane_caution", sun::kPlaneCaution);
   }
-  (void)daily_written;
   w.commit();
 }
 
