@@ -207,7 +207,9 @@ std::shared_ptr<const optics::KTable> builtin_h2o_table(const std::filesystem::p
   return t;
 }
 
-RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
+/// `zenith_deg` is the zenith angle the beam's slant paths are built for (0 for a night run,
+/// which has no light), `mu0` its cosine.
+RunResult run_atmosphere(const Experiment& e, double zenith_deg, double mu0, double factor) {
   const spectrum::Grid grid = spectrum::make_grid(e.segments, e.bands);
   const spectrum::SolarSource solar =
       e.solar == experiment::SolarChoice::planck ? spectrum::builtin_solar(grid)
@@ -248,7 +250,7 @@ RunResult run_atmosphere(const Experiment& e, double mu0, double factor) {
   if (e.spherical_beam) {
     // Pseudo-spherical direct beam: each layer's geometric slant factor in a spherical shell
     // (sun::layer_slant_factors), the same for every spectral point.
-    const std::vector<double> m = sun::layer_slant_factors(e.profile.altitude_km, e.solar_zenith_deg);
+    const std::vector<double> m = sun::layer_slant_factors(e.profile.altitude_km, zenith_deg);
     p.beam_path.resize(p.nl * p.n);
     for (std::size_t l = 0; l < p.nl; ++l) std::fill_n(p.beam_path.begin() + static_cast<long>(l * p.n), p.n, m[l]);
   }
@@ -446,13 +448,7 @@ RunResult run_experiment(const Experiment& e) {
   const double factor = night ? 0.0 : distance * e.irradiance_scale;
   RunResult r;
   try {
-    if (night) {
-      Experiment dark = e;
-      dark.solar_zenith_deg = 0.0;
-      r = dark.given_optics_mode ? run_given(dark, mu0, factor) : run_atmosphere(dark, mu0, factor);
-    } else {
-      r = e.given_optics_mode ? run_given(e, mu0, factor) : run_atmosphere(e, mu0, factor);
-    }
+    r = e.given_optics_mode ? run_given(e, mu0, factor) : run_atmosphere(e, zenith, mu0, factor);
   } catch (const std::invalid_argument& ex) {
     throw std::runtime_error(ex.what());
   }
