@@ -8,6 +8,8 @@
 // endings in every kind of file.
 #include <catch2/catch.hpp>
 
+#include "support/app_support.hpp"
+
 #include <sys/stat.h>
 #include <unistd.h>
 
@@ -25,6 +27,8 @@
 namespace fs = std::filesystem;
 using solstrata::testing::TempDir;
 
+using solstrata::testing::slurp;
+
 namespace {
 
 struct Outcome {
@@ -32,12 +36,6 @@ struct Outcome {
   std::string err;
 };
 
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
 
 /// Runs `solstrata ARGS` in `dir`; stdout is discarded, stderr kept (outside `dir`).
 Outcome invoke(const fs::path& dir, const std::string& args) {

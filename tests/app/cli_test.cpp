@@ -1,6 +1,8 @@
 // The command line as users meet it: exit codes, messages that point at the file, line and key,
 // and no output file left behind after a failure.
 #include <catch2/catch.hpp>
+
+#include "support/app_support.hpp"
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
@@ -10,6 +12,8 @@
 #include <unistd.h>
 
 namespace fs = std::filesystem;
+
+using solstrata::testing::slurp;
 
 namespace {
 
@@ -27,12 +31,6 @@ struct Outcome {
   std::string out, err;
 };
 
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
 
 Outcome run(const std::string& args) {
   const fs::path o = workdir() / "stdout.txt", e = workdir() / "stderr.txt";

@@ -22,11 +22,15 @@
 #include <variant>
 
 #include "io/hdf5_reader.hpp"
+#include "support/app_support.hpp"
 #include "io/output_lock.hpp"
 #include "support/temp_dir.hpp"
 
 namespace fs = std::filesystem;
 using solstrata::testing::TempDir;
+
+using solstrata::testing::same_content;
+using solstrata::testing::slurp;
 
 namespace {
 
@@ -35,12 +39,6 @@ struct Outcome {
   std::string err;
 };
 
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
 
 std::string command(const fs::path& dir, const std::string& args, const std::string& env) {
   return "cd '" + dir.string() + "' && " + env + " exec '" + SOLSTRATA_BINARY + "' " + args + " > /dev/null 2> '" +
@@ -91,24 +89,6 @@ sweep:
     - {parameter: surface.albedo, values: [0.1, 0.4]}
 )";
 
-/// Every variable of two files holds the same values (bit for bit) and attributes, except the
-/// creation time in the global `history`.
-void same_content(const fs::path& a, const fs::path& b) {
-  const auto names = solstrata::io::list_datasets(a);
-  REQUIRE(names == solstrata::io::list_datasets(b));
-  for (const std::string& n : names) {
-    const auto x = solstrata::io::read_variable(a, n), y = solstrata::io::read_variable(b, n);
-    INFO(n);
-    CHECK(x.dimensions == y.dimensions);
-    CHECK(x.values == y.values);
-    CHECK(x.texts == y.texts);
-    CHECK(x.attributes == y.attributes);
-  }
-  auto ga = solstrata::io::read_global_attributes(a), gb = solstrata::io::read_global_attributes(b);
-  ga.erase("history");
-  gb.erase("history");
-  CHECK(ga == gb);
-}
 
 /// Names in `dir` other than the experiment.
 std::vector<std::string> outputs(const fs::path& dir) {

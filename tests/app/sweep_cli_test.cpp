@@ -11,8 +11,11 @@
 #include <unistd.h>
 
 #include "io/hdf5_reader.hpp"
+#include "support/app_support.hpp"
 
 namespace fs = std::filesystem;
+
+using solstrata::testing::same_content;
 
 namespace {
 
@@ -59,24 +62,6 @@ sweep:
     - {parameter: surface.albedo, values: [0.1, 0.4]}
 )";
 
-/// Every variable of two files holds the same values (bit for bit) and the same attributes,
-/// except the creation time in the global `history`.
-void same_content(const fs::path& a, const fs::path& b) {
-  const auto names = solstrata::io::list_datasets(a);
-  REQUIRE(names == solstrata::io::list_datasets(b));
-  for (const std::string& n : names) {
-    const auto x = solstrata::io::read_variable(a, n), y = solstrata::io::read_variable(b, n);
-    INFO(n);
-    CHECK(x.dimensions == y.dimensions);
-    CHECK(x.values == y.values);
-    CHECK(x.texts == y.texts);
-    CHECK(x.attributes == y.attributes);
-  }
-  auto ga = solstrata::io::read_global_attributes(a), gb = solstrata::io::read_global_attributes(b);
-  ga.erase("history");
-  gb.erase("history");
-  CHECK(ga == gb);
-}
 
 }  // namespace
 
