@@ -35,6 +35,7 @@ std::string caution_text() { return std::string(experiment::kSolarCaution) + " "
 
 }  // namespace
 using detail::add_result_dimensions;
+using detail::RecordRows;
 using detail::set_field_attributes;
 using detail::write_global_attributes;
 
@@ -127,6 +128,68 @@ void set_field_attributes(Hdf5Writer& w, const Field& f) {
     w.set_attribute(f.name, "missing_value", kFillValue);
   }
 }
+
+RecordRows::RecordRows(Hdf5Writer& w, const std::vector<Field>& fields, const std::string& leading_dimension,
+                       const std::vector<std::string>& chosen)
+    : w_(w) {
+  for (const Field& f : fields) {
+    if (!f.per_scenario || !f.texts.empty()) continue;
+    slots_.push_back({&f, values_, f.values.size(), experiment::output_selected(chosen, f.name), {}});
+    values_ += f.values.size();
+  }
+  for (const Slot& s : slots_) {
+    if (!s.keep) continue;
+    std::vector<std::string> dims{leading_dimension};
+    dims.insert(dims.end(), s.f->dims.begin(), s.f->dims.end());
+    w_.define_rows(s.f->name, dims, {s.f->units, s.f->long_name, s.f->standard_name});
+  }
+  block_ = std::max<std::size_t>(1, (std::size_t{8} << 20) / std::max<std::size_t>(1, values_));
+}
+
+std::size_t RecordRows::offset_of(const std::string& name) const {
+  for (const Slot& s : slots_)
+    if (s.f->name == name) return s.offset;
+  throw OutputError("no per-scenario variable '" + name + "' in the record");
+}
+
+bool RecordRows::has(const std::string& name) const {
+  for (const Slot& s : slots_)
+    if (s.f->name == name) return true;
+  return false;
+}
+
+void RecordRows::add(const double* record) {
+  if (rows_ - block_start_ == block_) flush();
+  for (Slot& s : slots_) {
+    if (!s.keep) continue;
+    if (record) s.buffer.insert(s.buffer.end(), record + s.offset, record + s.offset + s.size);
+    else s.buffer.insert(s.buffer.end(), s.size, kFill);
+  }
+  ++rows_;
+}
+
+void RecordRows::flush() {
+  for (Slot& s : slots_) {
+    if (!s.keep || s.buffer.empty()) continue;
+    w_.write_rows(s.f->name, block_start_, s.buffer);
+    s.buffer.clear();
+  }
+  block_start_ = rows_;
+}
+
+void RecordRows::finish(const std::string& coordinates) {
+  flush();
+  for (const Slot& s : slots_) {
+    if (!s.keep) continue;
+    std::string c = coordinates;
+    if (s.f->on_levels) c += (c.empty() ? "" : " ") + std::string("level_pressure");
+    if (!c.empty()) w_.set_attribute(s.f->name, "coordinates", c);
+    set_field_attributes(w_, *s.f);
+    // Rows still to run hold the fill value: say so, so that readers mask them.
+    w_.set_attribute(s.f->name, "_FillValue", kFill);
+    w_.set_attribute(s.f->name, "missing_value", kFill);
+  }
+}
 }  // namespace detail
 
 void write_result_file(const std::filesystem::path& path, const experiment::Experiment& e,
@@ -197,7 +260,7 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
                       const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
                       const CheckpointContents& contents, bool partial) {
   // netCDF's default fill value for doubles (NC_FILL_DOUBLE): readers show it as missing.
-  constexpr double kFill = kFillValue;
+  constexpr double kFill = detail::kFill;
   const std::vector<std::string>& chosen = study.base().output.variables;
   const std::size_t n = study.size();
   if (study.is_time_series()) {
@@ -236,76 +299,31 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
     set_field_attributes(w, f);
   }
 
-  // Per-scenario variables, written in blocks of scenarios (row variables along "scenario"), so
-  // that memory stays bounded (about 64 MB of buffered values) however many scenarios there are.
-  struct Slot {
-    const Field* f;
-    std::size_t offset, size;
-    std::vector<double> buffer;
-    bool keep;  // written (chosen by output.variables); the record holds every variable anyway
-  };
-  std::vector<Slot> slots;
-  std::size_t offset = 0;
-  for (const Field& f : fields) {
-    if (!f.per_scenario || !f.texts.empty()) continue;
-    slots.push_back({&f, offset, f.values.size(), {}, experiment::output_selected(chosen, f.name)});
-    offset += f.values.size();
-  }
+  // Per-scenario variables, written in blocks of scenarios.
+  RecordRows rows(w, fields, "scenario", chosen);
+  const std::size_t offset = rows.record_values();
   if (offset + (with_effect ? 3 : 0) != contents.header.record_values) {
     throw OutputError(checkpoint.string() + ": record layout does not match this experiment");
   }
-  const auto dims_of = [](const Field& f) {
-    std::vector<std::string> d{"scenario"};
-    d.insert(d.end(), f.dims.begin(), f.dims.end());
-    return d;
-  };
-  for (Slot& s : slots) {
-    if (s.keep) w.define_rows(s.f->name, dims_of(*s.f), {s.f->units, s.f->long_name, s.f->standard_name});
-  }
-  const std::size_t block = std::max<std::size_t>(1, (std::size_t{8} << 20) / std::max<std::size_t>(1, offset));
-  std::size_t block_start = 0;
-  const auto flush_block = [&](std::size_t end) {
-    for (Slot& s : slots) {
-      if (!s.keep || s.buffer.empty()) continue;
-      w.write_rows(s.f->name, block_start, s.buffer);
-      s.buffer.clear();
-    }
-    block_start = end;
-  };
   std::vector<double> toa(with_effect ? n : 0, kFill), sfc(with_effect ? n : 0, kFill), atm(with_effect ? n : 0, kFill);
   std::vector<int> complete(n, 0);
   for (std::size_t i = 0; i < n; ++i) {
-    if (i - block_start == block) flush_block(i);
     const auto it = contents.offsets.find(i);
     if (it == contents.offsets.end()) {
       if (!partial) throw OutputError(checkpoint.string() + ": scenario " + std::to_string(i) + " is missing");
-      for (Slot& s : slots)
-        if (s.keep) s.buffer.insert(s.buffer.end(), s.size, kFill);
+      rows.add(nullptr);
       continue;
     }
     complete[i] = 1;
     const std::vector<double> rec = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
-    for (Slot& s : slots) {
-      if (!s.keep) continue;
-      s.buffer.insert(s.buffer.end(), rec.begin() + static_cast<long>(s.offset),
-                      rec.begin() + static_cast<long>(s.offset + s.size));
-    }
+    rows.add(rec.data());
     if (with_effect) {
       toa[i] = rec[offset];
       sfc[i] = rec[offset + 1];
       atm[i] = rec[offset + 2];
     }
   }
-  flush_block(n);
-  for (Slot& s : slots) {
-    if (!s.keep) continue;
-    const std::string c = coords + (s.f->on_levels ? " level_pressure" : "");
-    if (!c.empty()) w.set_attribute(s.f->name, "coordinates", c);
-    set_field_attributes(w, *s.f);
-    // Scenarios still to run hold the fill value: say so, so that readers mask them.
-    w.set_attribute(s.f->name, "_FillValue", kFill);
-    w.set_attribute(s.f->name, "missing_value", kFill);
-  }
+  rows.finish(coords);
   if (with_effect) {
     const std::string sign = " (net downward flux with aerosol minus without; negative = the aerosol cools, positive = it warms)";
     const struct {

@@ -1,7 +1,6 @@
 // The output of a time series: per-step results on a CF time axis, daily totals per local day.
 #include <algorithm>
 #include <cmath>
-#include <map>
 #include <span>
 #include <string>
 #include <vector>
@@ -90,72 +89,23 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
     else w.write(f.name, f.dims, std::span<const double>(f.values), a);
   }
 
-  // Record layout: every per-scenario numeric field in order.
-  struct Slot {
-    const Field* f;
-    std::size_t offset, size;
-    std::vector<double> buffer;
-  };
-  std::vector<Slot> slots;
-  std::map<std::string, std::size_t> offset_of;
-  std::size_t offset = 0;
-  for (const Field& f : fields) {
-    if (!f.per_scenario || !f.texts.empty()) continue;
-    slots.push_back({&f, offset, f.values.size(), {}});
-    offset_of[f.name] = offset;
-    offset += f.values.size();
-  }
-  if (offset != contents.header.record_values) {
+  // Per-step variables, written in blocks of steps.
+  detail::RecordRows rows(w, fields, "time", base.output.variables);
+  if (rows.record_values() != contents.header.record_values) {
     throw OutputError(checkpoint.string() + ": record layout does not match this experiment");
   }
-  // Written in blocks of steps (row variables along "time"): memory stays bounded for long series.
-  const std::vector<std::string>& chosen = base.output.variables;
-  std::vector<bool> keep(slots.size());
-  for (std::size_t k = 0; k < slots.size(); ++k) {
-    const Slot& s = slots[k];
-    keep[k] = experiment::output_selected(chosen, s.f->name);  // else in the record, not written
-    if (!keep[k]) continue;
-    std::vector<std::string> dims{"time"};
-    dims.insert(dims.end(), s.f->dims.begin(), s.f->dims.end());
-    w.define_rows(s.f->name, dims, {s.f->units, s.f->long_name, s.f->standard_name});
-  }
-  const std::size_t block = std::max<std::size_t>(1, (std::size_t{8} << 20) / std::max<std::size_t>(1, offset));
-  std::size_t block_start = 0;
-  const auto flush_block = [&](std::size_t end) {
-    for (std::size_t k = 0; k < slots.size(); ++k) {
-      if (!keep[k] || slots[k].buffer.empty()) continue;
-      w.write_rows(slots[k].f->name, block_start, slots[k].buffer);
-      slots[k].buffer.clear();
-    }
-    block_start = end;
-  };
   std::vector<int> complete(n, 0);
   for (std::size_t i = 0; i < n; ++i) {
-    if (i - block_start == block) flush_block(i);
     const auto it = contents.offsets.find(i);
     if (it == contents.offsets.end()) {
       if (!partial) throw OutputError(checkpoint.string() + ": step " + std::to_string(i) + " is missing");
-      for (std::size_t k = 0; k < slots.size(); ++k)
-        if (keep[k]) slots[k].buffer.insert(slots[k].buffer.end(), slots[k].size, kFill);
+      rows.add(nullptr);
       continue;
     }
     complete[i] = 1;
-    const std::vector<double> rec = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
-    for (std::size_t k = 0; k < slots.size(); ++k) {
-      if (!keep[k]) continue;
-      Slot& s = slots[k];
-      s.buffer.insert(s.buffer.end(), rec.begin() + long(s.offset), rec.begin() + long(s.offset + s.size));
-    }
+    rows.add(read_checkpoint_record(checkpoint, it->second, contents.header.record_values).data());
   }
-  flush_block(n);
-  for (std::size_t k = 0; k < slots.size(); ++k) {
-    if (!keep[k]) continue;
-    const Slot& s = slots[k];
-    if (s.f->on_levels) w.set_attribute(s.f->name, "coordinates", "level_pressure");
-    detail::set_field_attributes(w, *s.f);
-    w.set_attribute(s.f->name, "_FillValue", kFill);
-    w.set_attribute(s.f->name, "missing_value", kFill);
-  }
+  rows.finish("");
   w.write("step_complete", {"time"}, std::span<const int>(complete),
           {"1", "1 when the step's results are in this file, 0 while it is still to be run", ""});
   {
@@ -178,6 +128,16 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
     std::vector<int> day_done(n_days, 1);
     std::vector<std::vector<double>> sums(std::size(kDaily), std::vector<double>(n_days, 0.0));
     double s0 = 0.0;  // W m-2: TOA irradiance at mean distance, from any daylight node
+    // Record offsets, looked up once: each quantity's field and the field subtracted from it.
+    const std::size_t esf = rows.offset_of("earth_sun_factor"), toa_normal = rows.offset_of("toa_normal_irradiance");
+    std::vector<bool> present(std::size(kDaily));
+    std::vector<std::size_t> field_at(std::size(kDaily), 0), minus_at(std::size(kDaily), 0);
+    for (std::size_t q = 0; q < std::size(kDaily); ++q) {
+      present[q] = rows.has(kDaily[q].field);
+      if (!present[q]) continue;
+      field_at[q] = rows.offset_of(kDaily[q].field);
+      if (*kDaily[q].minus) minus_at[q] = rows.offset_of(kDaily[q].minus);
+    }
     for (std::size_t k = 0; k < tp.n_nodes(); ++k) {
       const std::size_t day = tp.node_day[k];
       const auto it = contents.offsets.find(n + k);
@@ -187,19 +147,16 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
         continue;
       }
       const std::vector<double> rec = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
-      if (s0 == 0.0 && rec[offset_of.at("earth_sun_factor")] > 0.0) {
-        s0 = rec[offset_of.at("toa_normal_irradiance")] / rec[offset_of.at("earth_sun_factor")];
-      }
+      if (s0 == 0.0 && rec[esf] > 0.0) s0 = rec[toa_normal] / rec[esf];
       for (std::size_t q = 0; q < std::size(kDaily); ++q) {
-        const auto f = offset_of.find(kDaily[q].field);
-        if (f == offset_of.end()) continue;
-        double v = rec[f->second];
-        if (*kDaily[q].minus) v -= rec[offset_of.at(kDaily[q].minus)];
+        if (!present[q]) continue;
+        double v = rec[field_at[q]];
+        if (*kDaily[q].minus) v -= rec[minus_at[q]];
         sums[q][day] += tp.node_weight[k] * v;
       }
     }
     for (std::size_t q = 0; q < std::size(kDaily); ++q) {
-      if (!offset_of.count(kDaily[q].field)) continue;
+      if (!present[q]) continue;
       std::vector<double> v(n_days);
       for (std::size_t d = 0; d < n_days; ++d) v[d] = day_done[d] ? sums[q][d] * kDaily[q].scale : kFill;
       w.write(kDaily[q].name, {"day"}, v, {kDaily[q].units, kDaily[q].long_name, kDaily[q].standard_name});
