@@ -4,7 +4,10 @@
 #include <cmath>
 #include <map>
 #include <mutex>
+#include <cstdio>
 #include <numbers>
+#include <optional>
+#include <span>
 #include <stdexcept>
 #include <utility>
 
@@ -20,11 +23,12 @@
 namespace solstrata::experiment {
 namespace {
 
-/// The solver's problems: one per spectral point (atmosphere mode) or band (given optics).
+/// The solver's problems: one per spectral point (atmosphere mode) or band (given optics); in a
+/// batch of cases, the points of every case one after another.
 struct Problems {
   std::size_t n = 0, nl = 0;
   std::vector<double> tau, omega, g, mu0, solar, albedo_direct, albedo_diffuse;
-  std::vector<double> rayleigh_fraction;  ///< [layer * n + problem], empty in given-optics mode
+  std::vector<double> rayleigh_fraction;  ///< [layer * n + problem], empty unless the reference solves
   std::vector<double> beam_path;          ///< [layer * n + problem] slant factors, empty = plane-parallel
 };
 
@@ -33,9 +37,9 @@ struct Fluxes {
   std::vector<double> dir, dif, up;
 };
 
-/// The level fluxes of a run's problems, in buffers reused by the thread's next run (the solver
-/// writes every value; a sweep would otherwise allocate and zero them per scenario). Valid until
-/// the thread's next call.
+/// The level fluxes of a batch's problems, in buffers reused by the thread's next batch (the
+/// solver writes every value; a sweep would otherwise allocate and zero them per scenario). Valid
+/// until the thread's next call. `e` gives the solver settings (the same for every case of a batch).
 const Fluxes& solve(const Problems& p, const Experiment& e) {
   thread_local Fluxes f;
   const std::size_t nlev = p.nl + 1;
@@ -207,54 +211,139 @@ std::shared_ptr<const optics::KTable> builtin_h2o_table(const std::filesystem::p
   return t;
 }
 
-/// `zenith_deg` is the zenith angle the beam's slant paths are built for (0 for a night run,
-/// which has no light), `mu0` its cosine.
-RunResult run_atmosphere(const Experiment& e, double zenith_deg, double mu0, double factor) {
-  const spectrum::Grid grid = spectrum::make_grid(e.segments, e.bands);
-  const spectrum::SolarSource solar =
-      e.solar == experiment::SolarChoice::planck ? spectrum::builtin_solar(grid)
-      : e.solar == experiment::SolarChoice::e490
-          ? spectrum::builtin_e490_solar(grid, e.data_dir.string())
-          : spectrum::tabulated_solar(spectrum::read_spectrum_csv(e.solar_file.string(), e.solar_column), grid);
-  // Absorbing gases: the built-in H2O table is made for this grid (weighted by ASTM E490), the
-  // built-in O2 table and users' tables were read at load time or come from the data directory.
-  optics::OpticsOptions oo = e.optics;
+/// What no case of a study changes: the grid, the solar source on it and the gas tables. Built
+/// once per distinct spectral set-up (spectral_setup caches it), not once per case.
+struct SpectralSetup {
+  spectrum::Grid grid;
+  spectrum::SolarSource solar;
+  std::vector<std::shared_ptr<const optics::KTable>> gas_tables;
   std::vector<std::string> gas_lines, not_modelled;
   bool h2o_broadband = false;
+};
+
+/// The inputs a SpectralSetup depends on, as exact text (doubles in hexadecimal).
+std::string setup_key(const Experiment& e) {
+  std::string k;
+  char buf[96];
+  for (const spectrum::GridSegment& g : e.segments) {
+    std::snprintf(buf, sizeof buf, "s%a,%a,%a;", g.from_nm, g.to_nm, g.step_nm);
+    k += buf;
+  }
+  for (const spectrum::Band& b : e.bands) {
+    std::snprintf(buf, sizeof buf, "b%a,%a,", b.lower_nm, b.upper_nm);
+    k += buf;
+    k += b.name + ";";
+  }
+  k += "solar" + std::to_string(static_cast<int>(e.solar)) + (e.solar_fill_zero ? "z" : "") + ";" +
+       e.solar_file.string() + ";" + e.solar_column + ";" + e.data_dir.string() + ";";
+  for (const Absorber& a : e.absorbers) {
+    std::snprintf(buf, sizeof buf, "%p", static_cast<const void*>(a.table.get()));
+    k += a.gas + "," + a.mode + "," + a.file.string() + "," + buf + ";";
+  }
+  return k;
+}
+
+SpectralSetup make_setup(const Experiment& e) {
+  SpectralSetup s;
+  s.grid = spectrum::make_grid(e.segments, e.bands);
+  s.solar = e.solar == experiment::SolarChoice::planck ? spectrum::builtin_solar(s.grid)
+            : e.solar == experiment::SolarChoice::e490
+                ? spectrum::builtin_e490_solar(s.grid, e.data_dir.string())
+                : spectrum::tabulated_solar(spectrum::read_spectrum_csv(e.solar_file.string(), e.solar_column), s.grid);
+  // Absorbing gases: the built-in H2O table is made for this grid (weighted by ASTM E490), the
+  // built-in O2 table and users' tables were read at load time or come from the data directory.
   for (const Absorber& a : e.absorbers) {
     if (a.mode == "none") {
-      not_modelled.push_back(a.gas);
+      s.not_modelled.push_back(a.gas);
       continue;
     }
     std::shared_ptr<const optics::KTable> t = a.table;
     if (a.mode == "builtin" && a.gas == "H2O") {
       t = builtin_h2o_table(e.data_dir);
-      h2o_broadband = true;
+      s.h2o_broadband = true;
     } else if (a.mode == "builtin" && a.gas == "O2") {
       t = cached_ktable(e.data_dir / "gases" / "o2_hitran2012.ktab");
     }
     std::string line = a.gas + ": " + t->title + " (" + t->origin + ")";
     for (const std::string& src : t->source) line += "; " + src;
-    gas_lines.push_back(std::move(line));
-    oo.gas_tables.push_back(std::move(t));
+    s.gas_lines.push_back(std::move(line));
+    s.gas_tables.push_back(std::move(t));
   }
-  optics::ColumnOptics co = optics::build_column_optics(e.profile, grid, e.aerosol, oo);
+  return s;
+}
 
-  Problems p;
-  p.n = co.n_points;
-  p.nl = co.n_layers;
-  p.tau = std::move(co.tau);
-  p.omega = std::move(co.omega);
-  p.g = std::move(co.g);
-  p.rayleigh_fraction = std::move(co.rayleigh_fraction);
-  if (e.spherical_beam) {
+/// The set-up of `e`, shared with every earlier case of the same key (the last few are kept; the
+/// key is compared exactly). Thread-safe.
+std::shared_ptr<const SpectralSetup> spectral_setup(const Experiment& e) {
+  static std::mutex mutex;
+  static std::vector<std::pair<std::string, std::shared_ptr<const SpectralSetup>>> made;  // most recent last
+  constexpr std::size_t kKeep = 4;
+  std::string key = setup_key(e);
+  {
+    std::lock_guard<std::mutex> lock(mutex);
+    for (const auto& [k, v] : made)
+      if (k == key) return v;
+  }
+  auto v = std::make_shared<const SpectralSetup>(make_setup(e));
+  std::lock_guard<std::mutex> lock(mutex);
+  made.emplace_back(std::move(key), v);
+  if (made.size() > kKeep) made.erase(made.begin());
+  return v;
+}
+
+/// One atmosphere-mode case of a batch: its set-up, its prepared optics and its sun.
+struct PreparedCase {
+  const Experiment* e = nullptr;
+  std::shared_ptr<const SpectralSetup> setup;
+  std::optional<optics::PreparedColumn> column;
+  double zenith = 0, mu0 = 1, factor = 1;  ///< the beam's zenith (0 at night), its cosine, the TOA factor
+  std::size_t offset = 0;                 ///< the case's first problem in the batch
+};
+
+/// Sums of the points of each bin (points are ordered by bin: first[b] .. first[b + 1]) at every
+/// level, [bin * nlev + level], from the batch's fluxes of one case (problems offset .. offset + n).
+void bin_sums(const Fluxes& f, std::size_t stride, std::size_t offset, std::size_t nlev,
+              const std::vector<std::size_t>& first, std::vector<double>& dir, std::vector<double>& dif,
+              std::vector<double>& up) {
+  const std::size_t nbins = first.size() - 1;
+  dir.resize(nbins * nlev);
+  dif.resize(nbins * nlev);
+  up.resize(nbins * nlev);
+  // Level outermost: the fluxes of one level are contiguous over problems.
+  for (std::size_t lev = 0; lev < nlev; ++lev) {
+    const double* fd = f.dir.data() + lev * stride + offset;
+    const double* ff = f.dif.data() + lev * stride + offset;
+    const double* fu = f.up.data() + lev * stride + offset;
+    for (std::size_t b = 0; b < nbins; ++b) {
+      double sd = 0, sf = 0, su = 0;
+      for (std::size_t q = first[b]; q < first[b + 1]; ++q) {
+        sd += fd[q];
+        sf += ff[q];
+        su += fu[q];
+      }
+      dir[b * nlev + lev] = sd;
+      dif[b * nlev + lev] = sf;
+      up[b * nlev + lev] = su;
+    }
+  }
+}
+
+/// Writes case `c`'s problems into the batch `p` (sized for all cases) from c.offset on.
+void fill_problems(const PreparedCase& c, Problems& p) {
+  const Experiment& e = *c.e;
+  const optics::ColumnOptics& co = c.column->per_point();
+  const std::size_t n = co.n_points, N = p.n, off = c.offset;
+  c.column->mix_into({p.tau.data(), p.omega.data(), p.g.data(),
+                     p.rayleigh_fraction.empty() ? nullptr : p.rayleigh_fraction.data(), N, off});
+  if (!p.beam_path.empty()) {
     // Pseudo-spherical direct beam: each layer's geometric slant factor in a spherical shell
     // (sun::layer_slant_factors), the same for every spectral point.
-    const std::vector<double> m = sun::layer_slant_factors(e.profile.altitude_km, zenith_deg);
-    p.beam_path.resize(p.nl * p.n);
-    for (std::size_t l = 0; l < p.nl; ++l) std::fill_n(p.beam_path.begin() + static_cast<long>(l * p.n), p.n, m[l]);
+    const std::vector<double> m = sun::layer_slant_factors(e.profile.altitude_km, c.zenith);
+    for (std::size_t l = 0; l < p.nl; ++l)
+      std::fill_n(p.beam_path.begin() + static_cast<long>(l * N + off), n, m[l]);
   }
   // Surface albedo per bin: the default, overridden inside named bands.
+  const spectrum::Grid& grid = c.setup->grid;
   std::vector<double> alb_dir(grid.size(), e.albedo_direct), alb_dif(grid.size(), e.albedo_diffuse);
   for (std::size_t b = 0; b < grid.bands().size(); ++b) {
     const auto it = e.albedo_by_band.find(grid.bands()[b].name);
@@ -262,14 +351,24 @@ RunResult run_atmosphere(const Experiment& e, double zenith_deg, double mu0, dou
     const spectrum::BinRange br = grid.band_bins(b);
     for (std::size_t i = br.first; i < br.last; ++i) alb_dir[i] = alb_dif[i] = it->second;
   }
-  for (std::size_t q = 0; q < p.n; ++q) {
+  const std::vector<double>& irr = c.setup->solar.bin_irradiance;
+  for (std::size_t q = 0; q < n; ++q) {
     const std::size_t bin = co.point_bin[q];
-    p.mu0.push_back(mu0);
-    p.solar.push_back(solar.bin_irradiance[bin] * co.point_weight[q] * factor);
-    p.albedo_direct.push_back(alb_dir[bin]);
-    p.albedo_diffuse.push_back(alb_dif[bin]);
+    p.mu0[off + q] = c.mu0;
+    p.solar[off + q] = irr[bin] * co.point_weight[q] * c.factor;
+    p.albedo_direct[off + q] = alb_dir[bin];
+    p.albedo_diffuse[off + q] = alb_dif[bin];
   }
-  const Fluxes& f = solve(p, e);
+}
+
+/// The result of case `c` from the batch's fluxes.
+RunResult finish_case(const PreparedCase& c, const Problems& p, const Fluxes& f) {
+  const Experiment& e = *c.e;
+  const SpectralSetup& setup = *c.setup;
+  const spectrum::Grid& grid = setup.grid;
+  const optics::ColumnOptics& co = c.column->per_point();
+  const std::size_t n = co.n_points, off = c.offset;
+  const double* solar = p.solar.data() + off;  // this case's TOA irradiance per point
 
   RunResult r;
   r.n_levels = p.nl + 1;
@@ -278,40 +377,37 @@ RunResult run_atmosphere(const Experiment& e, double zenith_deg, double mu0, dou
   r.n_bins = grid.size();
   r.level_pressure_hpa = e.profile.pressure_hpa;
   r.level_altitude_km = e.profile.altitude_km;
-  r.solar_approximate = solar.approximate;
-  r.solar_description = solar.description;
-  r.n_points = p.n;
+  r.solar_approximate = setup.solar.approximate;
+  r.solar_description = setup.solar.description;
+  r.n_points = n;
   r.layer_h2o_cm = atmos::layer_columns(e.profile).h2o_cm;
   for (double v : r.layer_h2o_cm) r.precipitable_water_cm += v;
-  r.gas_tables = std::move(gas_lines);
-  r.gases_not_modelled = std::move(not_modelled);
-  r.h2o_broadband = h2o_broadband;
+  r.gas_tables = setup.gas_lines;
+  r.gases_not_modelled = setup.not_modelled;
+  r.h2o_broadband = setup.h2o_broadband;
   for (const spectrum::Bin& b : grid.bins()) {
     r.bin_lower_nm.push_back(b.lower_nm);
     r.bin_upper_nm.push_back(b.upper_nm);
     r.bin_center_nm.push_back(b.center_nm);
   }
-  // Points of each bin, and bins of each band.
-  std::vector<std::vector<std::size_t>> bin_points(grid.size());
-  for (std::size_t q = 0; q < p.n; ++q) bin_points[co.point_bin[q]].push_back(q);
-  std::vector<std::vector<std::size_t>> band_points(r.n_bands);
+  // The points of bin i are first[i] .. first[i + 1] (points are ordered by bin).
+  std::vector<std::size_t> first(grid.size() + 1, 0);
+  for (std::size_t q = 0; q < n; ++q) ++first[co.point_bin[q] + 1];
+  for (std::size_t i = 0; i < grid.size(); ++i) first[i + 1] += first[i];
   for (std::size_t b = 0; b < r.n_bands; ++b) {
     const spectrum::Band& band = grid.bands()[b];
     r.band_names.push_back(band.name);
     r.band_lower_nm.push_back(band.lower_nm);
     r.band_upper_nm.push_back(band.upper_nm);
-    const spectrum::BinRange br = grid.band_bins(b);
-    for (std::size_t i = br.first; i < br.last; ++i)
-      band_points[b].insert(band_points[b].end(), bin_points[i].begin(), bin_points[i].end());
   }
   // Points to bins in one pass; bands and broadband then from the bins (sums over a few hundred
   // bins instead of every point again).
   std::vector<double> bdir, bdif, bup;
-  aggregate(f, p.n, r.n_levels, bin_points, bdir, bdif, bup);
   const std::size_t nlev = r.n_levels;
-  const auto from_bins = [&](const std::vector<double>& per_bin, std::size_t first, std::size_t last, double* out) {
+  bin_sums(f, p.n, off, nlev, first, bdir, bdif, bup);
+  const auto from_bins = [&](const std::vector<double>& per_bin, std::size_t lo, std::size_t hi, double* out) {
     for (std::size_t lev = 0; lev < nlev; ++lev) out[lev] = 0.0;
-    for (std::size_t i = first; i < last; ++i)
+    for (std::size_t i = lo; i < hi; ++i)
       for (std::size_t lev = 0; lev < nlev; ++lev) out[lev] += per_bin[i * nlev + lev];
   };
   r.band_direct_down.assign(r.n_bands * nlev, 0.0);
@@ -330,19 +426,21 @@ RunResult run_atmosphere(const Experiment& e, double zenith_deg, double mu0, dou
   from_bins(bdif, 0, grid.size(), r.diffuse_down.data());
   from_bins(bup, 0, grid.size(), r.diffuse_up.data());
   r.bin_toa_normal.assign(grid.size(), 0.0);
-  for (std::size_t q = 0; q < p.n; ++q) {
-    r.bin_toa_normal[co.point_bin[q]] += p.solar[q];
-    r.toa_normal_w_m2 += p.solar[q];
+  for (std::size_t q = 0; q < n; ++q) {
+    r.bin_toa_normal[co.point_bin[q]] += solar[q];
+    r.toa_normal_w_m2 += solar[q];
   }
 
-  // Irradiance-weighted band means of the column optical depth per component.
+  // Irradiance-weighted band means of the column optical depth per component (the points of a
+  // band are those of its bins, contiguous).
   const auto band_mean = [&](const std::vector<double>& col, std::vector<double>& out) {
     out.assign(r.n_bands, 0.0);
     for (std::size_t b = 0; b < r.n_bands; ++b) {
+      const spectrum::BinRange br = grid.band_bins(b);
       double w = 0.0, s = 0.0;
-      for (std::size_t q : band_points[b]) {
-        w += p.solar[q];
-        s += p.solar[q] * col[q];
+      for (std::size_t q = first[br.first]; q < first[br.last]; ++q) {
+        w += solar[q];
+        s += solar[q] * col[q];
       }
       out[b] = w > 0.0 ? s / w : 0.0;
     }
@@ -372,6 +470,66 @@ RunResult run_atmosphere(const Experiment& e, double zenith_deg, double mu0, dou
     r.bin_diffuse_up = std::move(bup);
   }
   return r;
+}
+
+/// Whether two atmosphere-mode cases can share one kernel call: the same solver settings and
+/// layer count (their spectral points may differ).
+bool same_solver(const Experiment& a, const Experiment& b) {
+  return a.reference_solver == b.reference_solver && a.reference_streams == b.reference_streams &&
+         a.closure == b.closure && a.single_precision == b.single_precision &&
+         a.spherical_beam == b.spherical_beam && a.profile.n_layers() == b.profile.n_layers();
+}
+
+/// The beam of a case: `zenith` is the zenith angle the slant paths are built for (0 for a night
+/// run, which has no light), `mu0` its cosine, `factor` the TOA factor (0 at night).
+struct Beam {
+  double zenith, mu0, factor;
+};
+Beam beam_of(const Experiment& e) {
+  const bool night = !e.sun_up;
+  const double zenith = night ? 0.0 : e.solar_zenith_deg;
+  return {zenith, std::cos(zenith * std::numbers::pi / 180.0), night ? 0.0 : e.distance.resolve() * e.irradiance_scale};
+}
+
+/// Atmosphere-mode cases [first, last) of `cases` (same_solver holds for all) as one batch: one
+/// kernel call over every case's points.
+void run_atmosphere_batch(std::span<const Experiment* const> cases, std::vector<RunResult>& out) {
+  std::vector<PreparedCase> prep;
+  prep.reserve(cases.size());
+  std::size_t total = 0;
+  for (const Experiment* e : cases) {
+    PreparedCase c;
+    c.e = e;
+    c.setup = spectral_setup(*e);
+    optics::OpticsOptions oo = e->optics;
+    oo.gas_tables = c.setup->gas_tables;
+    c.column.emplace(e->profile, c.setup->grid, e->aerosol, oo);
+    const Beam beam = beam_of(*e);
+    c.zenith = beam.zenith;
+    c.mu0 = beam.mu0;
+    c.factor = beam.factor;
+    c.offset = total;
+    total += c.column->n_points();
+    prep.push_back(std::move(c));
+  }
+  const Experiment& e0 = *cases.front();
+  // The batch's arrays: the thread's own, reused by its next batch; every value is written.
+  thread_local Problems p;
+  p.n = total;
+  p.nl = e0.profile.n_layers();
+  const std::size_t layered = p.nl * p.n;
+  p.tau.resize(layered);
+  p.omega.resize(layered);
+  p.g.resize(layered);
+  p.rayleigh_fraction.resize(e0.reference_solver ? layered : 0);
+  p.beam_path.resize(e0.spherical_beam ? layered : 0);
+  p.mu0.resize(total);
+  p.solar.resize(total);
+  p.albedo_direct.resize(total);
+  p.albedo_diffuse.resize(total);
+  for (const PreparedCase& c : prep) fill_problems(c, p);
+  const Fluxes& f = solve(p, e0);
+  for (const PreparedCase& c : prep) out.push_back(finish_case(c, p, f));
 }
 
 }  // namespace
@@ -438,23 +596,14 @@ void add_plane(const Experiment& e, RunResult& r) {
 
 }  // namespace
 
-RunResult run_experiment(const Experiment& e) {
-  // The sun below the horizon: the same run with no light (zero irradiance: nothing is solved),
-  // so that the result has the layout of a daytime one; the zenith angle stays the true one.
+namespace {
+
+/// The case-independent part of a result: sun, closure, products derived from the fluxes.
+void complete(const Experiment& e, RunResult& r) {
   const bool night = !e.sun_up;
-  const double zenith = night ? 0.0 : e.solar_zenith_deg;
-  const double mu0 = std::cos(zenith * std::numbers::pi / 180.0);
-  const double distance = e.distance.resolve();
-  const double factor = night ? 0.0 : distance * e.irradiance_scale;
-  RunResult r;
-  try {
-    r = e.given_optics_mode ? run_given(e, mu0, factor) : run_atmosphere(e, zenith, mu0, factor);
-  } catch (const std::invalid_argument& ex) {
-    throw std::runtime_error(ex.what());
-  }
   r.solar_zenith_deg = e.solar_zenith_deg;
-  r.mu0 = night ? std::cos(e.solar_zenith_deg * std::numbers::pi / 180.0) : mu0;
-  r.earth_sun_factor = distance;
+  r.mu0 = std::cos(e.solar_zenith_deg * std::numbers::pi / 180.0);  // the true zenith, also at night
+  r.earth_sun_factor = e.distance.resolve();
   r.closure = e.reference_solver ? "reference_discrete_ordinates_" + std::to_string(e.reference_streams) + "_streams"
                                  : std::string(rt::to_string(e.closure));
   derive(r);
@@ -464,7 +613,38 @@ RunResult run_experiment(const Experiment& e) {
   r.sun_up = e.sun_up;
   if (night) r.direct_normal = r.diffuse_horizontal = r.global_horizontal = 0.0;
   if (e.plane.given) add_plane(e, r);
-  return r;
+}
+
+}  // namespace
+
+std::vector<RunResult> run_experiments(std::span<const Experiment* const> cases) {
+  std::vector<RunResult> out;
+  out.reserve(cases.size());
+  try {
+    for (std::size_t i = 0; i < cases.size();) {
+      const Experiment& e = *cases[i];
+      if (e.given_optics_mode) {
+        const Beam beam = beam_of(e);
+        out.push_back(run_given(e, beam.mu0, beam.factor));
+        ++i;
+        continue;
+      }
+      // The longest run of consecutive cases that can share the kernel call.
+      std::size_t j = i + 1;
+      while (j < cases.size() && !cases[j]->given_optics_mode && same_solver(e, *cases[j])) ++j;
+      run_atmosphere_batch(cases.subspan(i, j - i), out);
+      i = j;
+    }
+  } catch (const std::invalid_argument& ex) {
+    throw std::runtime_error(ex.what());
+  }
+  for (std::size_t i = 0; i < cases.size(); ++i) complete(*cases[i], out[i]);
+  return out;
+}
+
+RunResult run_experiment(const Experiment& e) {
+  const Experiment* one[] = {&e};
+  return std::move(run_experiments(one).front());
 }
 
 }  // namespace solstrata::experiment

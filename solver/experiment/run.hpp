@@ -1,6 +1,7 @@
 // Running one experiment: optics, the two-stream solve, and the products users feed downstream.
 #pragma once
 
+#include <span>
 #include <string>
 #include <vector>
 
@@ -105,7 +106,15 @@ std::vector<BandSummary> band_summary(const RunResult& r);
 /// broadband, [band * n_levels + level] with n_bands + 1 bands.
 std::vector<double> band_and_broadband(const RunResult& r, const std::string& quantity);
 
-/// Runs one experiment. Throws std::runtime_error when the physics modules reject an input that
+/// Runs several experiments as one batch (the engine under single runs, sweeps, time series and
+/// `accuracy`): each case contributes its own optics, sun and surface; the spectral set-up (grid,
+/// solar source, gas tables) is built once per distinct set-up and shared; consecutive cases with
+/// the same solver settings and layer count are solved by one batched kernel call over all their
+/// spectral points. Result i is that of run_experiment(*cases[i]) bit for bit (the problems of a
+/// batch are independent). Throws as run_experiment.
+std::vector<RunResult> run_experiments(std::span<const Experiment* const> cases);
+
+/// Runs one experiment (a batch of one). Throws std::runtime_error when the physics modules reject an input that
 /// the loader could not check (the message names it).
 RunResult run_experiment(const Experiment& e);
 

@@ -120,13 +120,13 @@ std::shared_ptr<const ClearOptics> cached_clear_optics(const spectrum::Grid& gri
 
 /// One layer of the mixing over its points (the arithmetic of OpticsMixer written out; Rayleigh,
 /// ozone, gas, aerosol in this order). A function of its own so that __restrict on the parameters
-/// lets the loop vectorise.
+/// lets the loop vectorise; kRf: also the Rayleigh share of the scattering.
+template <bool kRf>
 void mix_layer(std::size_t np, const double* __restrict rp, const double* __restrict op, const double* __restrict tg_row,
                const double* __restrict ap, const double* __restrict wp, const double* __restrict gp_,
-               double* __restrict tau, double* __restrict om, double* __restrict gg, double* __restrict rf,
-               double* __restrict ctr, double* __restrict cto, double* __restrict ctg, double* __restrict cta) {
+               double* __restrict tau, double* __restrict om, double* __restrict gg, double* __restrict rf) {
   constexpr double kMaxG = 1.0 - 1e-12;  // OpticsMixer's bound on |g|
-    for (std::size_t k = 0; k < np; ++k) {
+  for (std::size_t k = 0; k < np; ++k) {
     const double r = rp[k], oz = op[k], tg = tg_row[k], a = ap[k];
     const double w = wp[k], g = gp_[k];
     const double t = ((r + oz) + tg) + a;
@@ -137,22 +137,31 @@ void mix_layer(std::size_t np, const double* __restrict rp, const double* __rest
     const double t_safe = t > 0.0 ? t : 1.0, scat_safe = scat > 0.0 ? scat : 1.0;
     const double w_mix = std::min(std::max(scat / t_safe, 0.0), 1.0);
     const double g_mix = std::min(std::max(scat_g / scat_safe, -kMaxG), kMaxG);
-    const double f_ray = std::min(1.0, r / scat_safe);
     tau[k] = t;
     om[k] = t > 0.0 ? w_mix : 0.0;
     gg[k] = scat > 0.0 ? g_mix : 0.0;
-    rf[k] = scat > 0.0 ? f_ray : 0.0;
-    ctr[k] += r;
-    cto[k] += oz;
-    ctg[k] += tg;
-    cta[k] += a;
+    if constexpr (kRf) {
+      const double f_ray = std::min(1.0, r / scat_safe);
+      rf[k] = scat > 0.0 ? f_ray : 0.0;
+    }
   }
 }
 
 }  // namespace
 
-ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::Grid& grid,
-                                 const AerosolSpec& aerosol, const OpticsOptions& options) {
+struct PreparedColumn::Tables {
+  std::shared_ptr<const GasPoints> gas;       // k-term gas optical depths [layer * n_points + point]
+  std::shared_ptr<const ClearOptics> clear;   // Rayleigh and ozone [bin * n_layers + layer]
+  std::vector<double> ta, wa, ga;             // aerosol tau [bin * n_layers + layer], omega and g [bin]
+};
+
+PreparedColumn::~PreparedColumn() = default;
+PreparedColumn::PreparedColumn(PreparedColumn&&) noexcept = default;
+PreparedColumn& PreparedColumn::operator=(PreparedColumn&&) noexcept = default;
+
+PreparedColumn::PreparedColumn(const atmos::Profile& profile, const spectrum::Grid& grid, const AerosolSpec& aerosol,
+                               const OpticsOptions& options)
+    : tables_(std::make_unique<Tables>()) {
   if (const std::string msg = options.validate(); !msg.empty()) throw std::invalid_argument(msg);
   if (const std::string msg = profile.validate(); !msg.empty()) throw std::invalid_argument(msg);
   if (grid.size() == 0) throw std::invalid_argument("the spectral grid has no bins");
@@ -163,8 +172,14 @@ ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::
       throw std::invalid_argument(s.str());
     }
   }
-  atmos::Profile p = profile;
-  if (options.ozone && options.total_ozone_du > 0.0) atmos::scale_ozone_to(p, options.total_ozone_du);
+  const atmos::Profile* pp = &profile;
+  atmos::Profile scaled;
+  if (options.ozone && options.total_ozone_du > 0.0) {
+    scaled = profile;
+    atmos::scale_ozone_to(scaled, options.total_ozone_du);
+    pp = &scaled;
+  }
+  const atmos::Profile& p = *pp;
   const atmos::LayerColumns cols = atmos::layer_columns(p);
   const std::vector<double> share =
       options.aerosol ? layer_fractions(aerosol, p) : std::vector<double>(p.n_layers(), 0.0);
@@ -192,66 +207,109 @@ ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::
     }
     gases.push_back(std::move(g));
   }
-  const std::shared_ptr<const GasPoints> gpp = cached_gas_points(grid, state, gases);
-  const GasPoints& gp = *gpp;
+  Tables& tb = *tables_;
+  tb.gas = cached_gas_points(grid, state, gases);
+  const GasPoints& gp = *tb.gas;
 
-  ColumnOptics o;
+  ColumnOptics& o = meta_;
   o.n_layers = p.n_layers();
   o.n_points = gp.n_points();
   const std::size_t np = o.n_points;
-  o.tau.assign(o.n_layers * np, 0.0);
-  o.omega.assign(o.n_layers * np, 0.0);
-  o.g.assign(o.n_layers * np, 0.0);
-  o.column_tau_rayleigh.assign(np, 0.0);
-  o.column_tau_ozone.assign(np, 0.0);
-  o.column_tau_aerosol.assign(np, 0.0);
-  o.column_tau_gas.assign(np, 0.0);
-  o.rayleigh_fraction.assign(o.n_layers * np, 0.0);
   // Per bin: Rayleigh, ozone and aerosol optics, the same for every k-term of the bin.
   const std::size_t nb = grid.size(), nl = o.n_layers;
-  const std::shared_ptr<const ClearOptics> clear = cached_clear_optics(grid, cols, p.co2_ppmv, options);
-  const std::vector<double>& tr = clear->rayleigh;
-  const std::vector<double>& to = clear->ozone;
-  std::vector<double> ta(nb * nl), wa(nb), ga(nb);
+  tb.clear = cached_clear_optics(grid, cols, p.co2_ppmv, options);
+  const std::vector<double>& tr = tb.clear->rayleigh;
+  const std::vector<double>& to = tb.clear->ozone;
+  tb.ta.resize(nb * nl);
+  tb.wa.resize(nb);
+  tb.ga.resize(nb);
   for (std::size_t b = 0; b < nb; ++b) {
     const double lam = grid.bins()[b].center_nm;
     const double tau_a = options.aerosol ? aerosol.column_tau(lam) : 0.0;
-    wa[b] = aerosol.omega_at(lam);
-    ga[b] = aerosol.g_at(lam);
-    for (std::size_t l = 0; l < nl; ++l) ta[b * nl + l] = tau_a * share[l];
+    tb.wa[b] = aerosol.omega_at(lam);
+    tb.ga[b] = aerosol.g_at(lam);
+    for (std::size_t l = 0; l < nl; ++l) tb.ta[b * nl + l] = tau_a * share[l];
   }
+  // Column optical depths per component, summed over layers top down (per bin for the
+  // components that are the same for every k-term of a bin).
+  std::vector<double> col_r(nb, 0.0), col_o(nb, 0.0), col_a(nb, 0.0);
+  for (std::size_t b = 0; b < nb; ++b) {
+    for (std::size_t l = 0; l < nl; ++l) {
+      col_r[b] += tr[b * nl + l];
+      col_o[b] += to[b * nl + l];
+      col_a[b] += tb.ta[b * nl + l];
+    }
+  }
+  o.point_bin.resize(np);
+  o.point_weight.resize(np);
+  o.wavelength_nm.resize(np);
+  o.column_tau_rayleigh.resize(np);
+  o.column_tau_ozone.resize(np);
+  o.column_tau_aerosol.resize(np);
+  o.column_tau_gas.assign(np, 0.0);
   for (std::size_t k = 0; k < np; ++k) {
     const std::size_t b = gp.points[k].bin;
-    o.point_bin.push_back(b);
-    o.point_weight.push_back(gp.points[k].weight);
-    o.wavelength_nm.push_back(grid.bins()[b].center_nm);
+    o.point_bin[k] = b;
+    o.point_weight[k] = gp.points[k].weight;
+    o.wavelength_nm[k] = grid.bins()[b].center_nm;
+    o.column_tau_rayleigh[k] = col_r[b];
+    o.column_tau_ozone[k] = col_o[b];
+    o.column_tau_aerosol[k] = col_a[b];
   }
+  for (std::size_t l = 0; l < nl; ++l)
+    for (std::size_t k = 0; k < np; ++k) o.column_tau_gas[k] += gp.tau[l * np + k];
+}
+
+void PreparedColumn::mix_into(const MixedTarget& t) const {
+  const ColumnOptics& o = meta_;
+  const Tables& tb = *tables_;
+  const std::size_t np = o.n_points, nl = o.n_layers;
+  const std::vector<double>& tr = tb.clear->rayleigh;
+  const std::vector<double>& to = tb.clear->ozone;
   // Mixing (the arithmetic of OpticsMixer, written out so that the loop over points vectorises:
   // layer outermost, every store contiguous). Order of the sums as in OpticsMixer: Rayleigh,
-  // ozone, gas, aerosol.
-  // Per layer, the per-bin values are first spread over the points (a plain copy loop; gathers
-  // are not generated for every target), then the arithmetic runs as one vector loop.
-  std::vector<double> spread(5 * np);
+  // ozone, gas, aerosol. Per layer, the per-bin values are first spread over the points (a plain
+  // copy loop; gathers are not generated for every target), then the arithmetic runs as one
+  // vector loop. The spread buffer is the thread's own, reused.
+  thread_local std::vector<double> spread;
+  spread.resize(5 * np);
   double* __restrict rp = spread.data();
   double* __restrict op = rp + np;
   double* __restrict ap = rp + 2 * np;
   double* __restrict wp = rp + 3 * np;
   double* __restrict gp_ = rp + 4 * np;
+  const std::size_t* bin = o.point_bin.data();
   for (std::size_t k = 0; k < np; ++k) {
-    wp[k] = wa[o.point_bin[k]];
-    gp_[k] = ga[o.point_bin[k]];
+    wp[k] = tb.wa[bin[k]];
+    gp_[k] = tb.ga[bin[k]];
   }
   for (std::size_t l = 0; l < nl; ++l) {
     for (std::size_t k = 0; k < np; ++k) {
-      const std::size_t b = o.point_bin[k];
+      const std::size_t b = bin[k];
       rp[k] = tr[b * nl + l];
       op[k] = to[b * nl + l];
-      ap[k] = ta[b * nl + l];
+      ap[k] = tb.ta[b * nl + l];
     }
-    mix_layer(np, rp, op, gp.tau.data() + l * np, ap, wp, gp_, o.tau.data() + l * np, o.omega.data() + l * np,
-              o.g.data() + l * np, o.rayleigh_fraction.data() + l * np, o.column_tau_rayleigh.data(),
-              o.column_tau_ozone.data(), o.column_tau_gas.data(), o.column_tau_aerosol.data());
+    const std::size_t at = l * t.stride + t.offset;
+    const double* tg = tb.gas->tau.data() + l * np;
+    if (t.rayleigh_fraction) {
+      mix_layer<true>(np, rp, op, tg, ap, wp, gp_, t.tau + at, t.omega + at, t.g + at, t.rayleigh_fraction + at);
+    } else {
+      mix_layer<false>(np, rp, op, tg, ap, wp, gp_, t.tau + at, t.omega + at, t.g + at, nullptr);
+    }
   }
+}
+
+ColumnOptics build_column_optics(const atmos::Profile& profile, const spectrum::Grid& grid,
+                                 const AerosolSpec& aerosol, const OpticsOptions& options) {
+  const PreparedColumn prep(profile, grid, aerosol, options);
+  ColumnOptics o = prep.per_point();
+  const std::size_t n = o.n_layers * o.n_points;
+  o.tau.assign(n, 0.0);
+  o.omega.assign(n, 0.0);
+  o.g.assign(n, 0.0);
+  o.rayleigh_fraction.assign(n, 0.0);
+  prep.mix_into({o.tau.data(), o.omega.data(), o.g.data(), o.rayleigh_fraction.data(), o.n_points, 0});
   return o;
 }
 

@@ -55,6 +55,43 @@ struct ColumnOptics {
   std::vector<double> rayleigh_fraction;
 };
 
+/// Where the mixed per-layer optics of one column go inside a batch of solver problems (several
+/// columns can share one batch): element (layer, point) at [layer * stride + offset + point].
+struct MixedTarget {
+  double* tau = nullptr;
+  double* omega = nullptr;
+  double* g = nullptr;
+  double* rayleigh_fraction = nullptr;  ///< null: not written (only the multi-stream reference needs it)
+  std::size_t stride = 0;
+  std::size_t offset = 0;
+};
+
+/// A column's optics in two steps, so that a batch of columns can be sized before it is filled:
+/// the constructor does everything per bin (cross sections, aerosol, gas k-terms, all cached
+/// between columns that share them) and fills the per-point values of per_point() (its per-layer
+/// arrays stay empty); mix_into() then writes the per-layer mixed optics into the caller's batch.
+class PreparedColumn {
+ public:
+  /// Same inputs, checks and exceptions as build_column_optics.
+  PreparedColumn(const atmos::Profile& profile, const spectrum::Grid& grid, const AerosolSpec& aerosol,
+                 const OpticsOptions& options);
+  ~PreparedColumn();
+  PreparedColumn(PreparedColumn&&) noexcept;
+  PreparedColumn& operator=(PreparedColumn&&) noexcept;
+
+  [[nodiscard]] std::size_t n_points() const { return meta_.n_points; }
+  [[nodiscard]] std::size_t n_layers() const { return meta_.n_layers; }
+  /// Points, weights, wavelengths and column optical depths per component (per-layer arrays empty).
+  [[nodiscard]] const ColumnOptics& per_point() const { return meta_; }
+  /// Writes tau, omega, g (and the Rayleigh fraction when asked) of every layer and point.
+  void mix_into(const MixedTarget& target) const;
+
+ private:
+  struct Tables;
+  ColumnOptics meta_;
+  std::unique_ptr<Tables> tables_;
+};
+
 /// Builds the optics of `profile` at every bin of `grid` (optics at each bin's centre):
 /// Rayleigh tau = cross section x layer air column; ozone tau = cross section (optionally at the
 /// layer temperature) x layer ozone column; aerosol tau = Ångström column value x layer share,
