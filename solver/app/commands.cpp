@@ -137,6 +137,7 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
   try {
     // Scenario 0 fixes the record layout; a fresh run records it first.
     const experiment::ScenarioResult templ = experiment::run_scenario(study, 0, spectral);
+    opt.cases_per_call = experiment::cases_per_call_for(templ.result.n_points);
     const bool with_effect = study.computes_aerosol_effect();
     const std::size_t record_values = io::scenario_record(templ, with_effect).size();
     std::optional<io::CheckpointWriter> writer;
@@ -363,14 +364,19 @@ int accuracy_command(const AccuracyOptions& o) {
     experiment::run_parallel(
         picks.size(), threads, nullptr,
         [&](std::size_t slot) {
-          experiment::Experiment e = study->scenario(picks[slot]);
-          e.reference_solver = false;
+          // The case with the experiment's closure and with the reference: one engine call
+          // (each solver gets its own kernel call inside it).
+          experiment::Experiment two = study->scenario(picks[slot]);
+          two.reference_solver = false;
+          experiment::Experiment ref = two;
+          ref.reference_solver = true;
+          ref.reference_streams = streams;
+          const experiment::Experiment* both[] = {&two, &ref};
+          std::vector<experiment::RunResult> r = experiment::run_experiments(both);
           io::AccuracyCase& c = cases[slot];
           c.scenario = picks[slot];
-          c.two_stream = experiment::run_experiment(e);
-          e.reference_solver = true;
-          e.reference_streams = streams;
-          c.reference = experiment::run_experiment(e);
+          c.two_stream = std::move(r[0]);
+          c.reference = std::move(r[1]);
         },
         [&](std::size_t) { progress.step(); });
     if (!out.empty()) io::write_accuracy_file(out, study->base(), cases, streams);

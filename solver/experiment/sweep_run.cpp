@@ -7,6 +7,7 @@
 #include <map>
 #include <mutex>
 #include <optional>
+#include <span>
 #include <thread>
 
 #if defined(__GLIBC__)
@@ -86,13 +87,25 @@ class CleanCache {
   std::map<std::string, std::shared_future<std::vector<double>>> cache_;
 };
 
-ScenarioResult solve_one(const Study& study, std::size_t i, bool spectral, CleanCache* clean) {
-  ScenarioResult out;
-  out.index = i;
-  Experiment e = study.scenario(i);
-  e.output.spectral = spectral;
-  out.result = run_experiment(e);
-  if (clean) out.effect = effect_of(out.result, clean->get(i));
+/// Scenarios `indices` of the study as one engine call; their aerosol radiative effects from the
+/// cache of aerosol-free cases (null: none).
+std::vector<ScenarioResult> solve_cases(const Study& study, std::span<const std::size_t> indices, bool spectral,
+                                        CleanCache* clean) {
+  std::vector<Experiment> es;
+  es.reserve(indices.size());
+  std::vector<const Experiment*> ptrs;
+  for (std::size_t i : indices) {
+    es.push_back(study.scenario(i));
+    es.back().output.spectral = spectral;
+  }
+  for (const Experiment& e : es) ptrs.push_back(&e);
+  std::vector<RunResult> rs = run_experiments(ptrs);
+  std::vector<ScenarioResult> out(indices.size());
+  for (std::size_t k = 0; k < indices.size(); ++k) {
+    out[k].index = indices[k];
+    out[k].result = std::move(rs[k]);
+    if (clean) out[k].effect = effect_of(out[k].result, clean->get(indices[k]));
+  }
   return out;
 }
 
@@ -100,12 +113,13 @@ ScenarioResult solve_one(const Study& study, std::size_t i, bool spectral, Clean
 
 ScenarioResult run_scenario(const Study& study, std::size_t index, bool spectral) {
   CleanCache cache(study, spectral);
-  return solve_one(study, index, spectral, study.computes_aerosol_effect() ? &cache : nullptr);
+  const std::size_t one[] = {index};
+  return std::move(solve_cases(study, one, spectral, study.computes_aerosol_effect() ? &cache : nullptr).front());
 }
 
 std::size_t run_parallel(std::size_t count, unsigned threads, const std::atomic<bool>* stop,
                          const std::function<void(std::size_t)>& work,
-                         const std::function<void(std::size_t)>& on_done) {
+                         const std::function<void(std::size_t)>& on_done, std::size_t max_waiting_items) {
   keep_freed_memory();
   std::atomic<std::size_t> next{0};
   std::mutex m;
@@ -116,7 +130,7 @@ std::size_t run_parallel(std::size_t count, unsigned threads, const std::atomic<
   const unsigned n_threads = std::max(1u, threads);
   // Back-pressure: while the caller is busy (writing a snapshot of a large sweep, say), workers
   // stop after this many finished items are waiting, so memory does not grow with the run.
-  const std::size_t max_waiting = 64 * std::size_t{n_threads};
+  const std::size_t max_waiting = max_waiting_items ? max_waiting_items : 64 * std::size_t{n_threads};
   unsigned running = n_threads;
   const auto stopped = [&] { return stop && stop->load(); };
 
@@ -185,27 +199,39 @@ std::size_t run_scenarios(const Study& study, const std::vector<std::size_t>& to
                           const std::function<void(ScenarioResult&&)>& on_done) {
   CleanCache cache(study, options.spectral);
   CleanCache* clean = study.computes_aerosol_effect() ? &cache : nullptr;
-  // Finished results waiting to be handed over (bounded by what the workers are ahead of the
-  // caller, not by the number of scenarios).
+  // Work items are blocks of consecutive scenarios of `todo`, one engine call each. Finished
+  // results wait here to be handed over (bounded by what the workers are ahead of the caller,
+  // not by the number of scenarios).
+  const std::size_t per = std::max<std::size_t>(1, options.cases_per_call);
+  const std::size_t n_items = (todo.size() + per - 1) / per;
   std::mutex slots_mutex;
-  std::map<std::size_t, ScenarioResult> slots;
-  return run_parallel(
-      todo.size(), options.threads, options.stop,
+  std::map<std::size_t, std::vector<ScenarioResult>> slots;
+  std::size_t handed = 0;
+  run_parallel(
+      n_items, options.threads, options.stop,
       [&](std::size_t k) {
-        ScenarioResult r = solve_one(study, todo[k], options.spectral, clean);
+        const std::size_t first = k * per, count = std::min(per, todo.size() - first);
+        std::vector<ScenarioResult> r =
+            solve_cases(study, std::span<const std::size_t>(todo).subspan(first, count), options.spectral, clean);
         std::lock_guard<std::mutex> lock(slots_mutex);
         slots.emplace(k, std::move(r));
       },
       [&](std::size_t k) {
-        ScenarioResult r;
+        std::vector<ScenarioResult> r;
         {
           std::lock_guard<std::mutex> lock(slots_mutex);
           auto it = slots.find(k);
           r = std::move(it->second);
           slots.erase(it);
         }
-        on_done(std::move(r));
-      });
+        for (ScenarioResult& s : r) {
+          on_done(std::move(s));
+          ++handed;
+        }
+      },
+      // About 64 finished scenarios per thread may wait, as many as with one scenario per item.
+      std::max<std::size_t>(2, 64 / per) * std::max(1u, options.threads));
+  return handed;
 }
 
 }  // namespace solstrata::experiment
