@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "bench_common.hpp"
+#include "limit_kernel.hpp"
 #include "rt/two_stream.hpp"
 
 using namespace solstrata::rt;
@@ -83,6 +84,51 @@ int main(int argc, char** argv) {
                           std::abs(p.u[k] - u2[k]) / incident});
       }
     std::printf("# float vs double: largest flux difference %.2e of the incident flux\n", worst);
+  }
+  {
+    // The vectorised limit (bench/limit_kernel.hpp: the same delta-Eddington algorithm written
+    // as plainly as the compiler vectorises best), side by side with the library's kernel in
+    // this run, and the largest difference of their fluxes (relative to the incident flux).
+    const ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
+    SolverOptions od;
+    od.block_size = block;
+    const double t_lib = bench::best_seconds(reps, [&] { solve_columns_unchecked(in, od, {p.d, p.f, p.u}, work); });
+    std::vector<double> d2(p.d.size()), f2(p.f.size()), u2(p.u.size());
+    bench::LimitWork<double> lw;
+    const double t_lim = bench::best_seconds(reps, [&] {
+      bench::limit_solve<double>(np, nl, p.tau.data(), p.omega.data(), p.g.data(), p.mu0.data(), p.sol.data(),
+                                 p.ad.data(), p.af.data(), d2.data(), f2.data(), u2.data(), block, lw);
+    });
+    double worst = 0.0, worst_regular = 0.0;
+    std::vector<char> off(np, 0);  // problems where the two differ by more than 1e-9
+    for (std::size_t k = 0; k < p.d.size(); ++k) {
+      const double incident = p.mu0[k % np] * p.sol[k % np];
+      const double d = std::max({std::abs(p.d[k] - d2[k]), std::abs(p.f[k] - f2[k]), std::abs(p.u[k] - u2[k])}) / incident;
+      worst = std::max(worst, d);
+      if (d > 1e-9) off[k % np] = 1;
+    }
+    for (std::size_t k = 0; k < p.d.size(); ++k) {
+      if (off[k % np]) continue;
+      const double incident = p.mu0[k % np] * p.sol[k % np];
+      worst_regular = std::max({worst_regular, std::abs(p.d[k] - d2[k]) / incident,
+                                std::abs(p.f[k] - f2[k]) / incident, std::abs(p.u[k] - u2[k]) / incident});
+    }
+    const long n_off = std::count(off.begin(), off.end(), char(1));
+    std::printf("vectorised limit delta_eddington: %.2f ns per layer-solve\n", 1e9 * t_lim / layer_solves);
+    std::printf("# library kernel / limit, double: %.2f (%.2f vs %.2f ns); largest flux difference %.1e of the incident flux "
+                "in %ld of %zu problems (a layer near k mu0 = 1, which only the library fixes up), %.1e in the others\n",
+                t_lib / t_lim, 1e9 * t_lib / layer_solves, 1e9 * t_lim / layer_solves, worst, n_off, np, worst_regular);
+    SolverOptions of = od;
+    of.single_precision = true;
+    const double t_libf = bench::best_seconds(reps, [&] { solve_columns_unchecked(in, of, {p.d, p.f, p.u}, work); });
+    bench::LimitWork<float> lwf;
+    const double t_limf = bench::best_seconds(reps, [&] {
+      bench::limit_solve<float>(np, nl, p.tau.data(), p.omega.data(), p.g.data(), p.mu0.data(), p.sol.data(),
+                                p.ad.data(), p.af.data(), d2.data(), f2.data(), u2.data(), block, lwf);
+    });
+    std::printf("vectorised limit delta_eddington float: %.2f ns per layer-solve\n", 1e9 * t_limf / layer_solves);
+    std::printf("# library kernel / limit, float: %.2f (%.2f vs %.2f ns)\n", t_libf / t_limf,
+                1e9 * t_libf / layer_solves, 1e9 * t_limf / layer_solves);
   }
   {
     SolverOptions o;

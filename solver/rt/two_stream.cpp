@@ -29,6 +29,11 @@ constexpr T singular_band() {
   else return kSingularBand;
 }
 
+/// Marks, in the beam reflectance of the layer pass, a problem inside the singular band (a
+/// reflectance is in [0, 1], so -2 is never a result).
+template <class T>
+constexpr T kNearMark = T(-2);
+
 /// Below this k*tau, X = (1 - exp(-2 k tau)) / (2k) is taken from its Taylor series (truncation
 /// < 4e-17 relative); above it the closed form loses < 1e-14 to cancellation.
 constexpr double kThinSeries = 0.01;
@@ -314,18 +319,19 @@ void solve_block(const KernelCoefficients<T>& coef, const ColumnBatch& in, std::
       beam_response(c, L, mu[j], t0, L.inv_sing, rbj, tbj);
       r[j] = L.r;
       t[j] = L.t;
-      rb[j] = rbj;
+      rb[j] = L.near ? kNearMark<T> : rbj;  // marked for the fix-up below
       tb[j] = tbj;
       d1[j] = d0[j] * t0;
     }
     // Rare: a problem within the singular band of k mu0 = 1 gets the scalar interpolated form.
+    // Only the marked problems are solved again (in float, whose band is wider, a block layer
+    // holds one now and then; solving the whole layer again cost the float kernel 40 %).
     if (n_near > 0) {
       for (std::size_t j = 0; j < nb; ++j) {
+        if (rb[j] != kNearMark<T>) continue;
         const LayerCore<T> L =
             layer_core<kDelta, T>(c, static_cast<T>(tau[j]), static_cast<T>(om[j]), static_cast<T>(gg[j]), mu[j]);
-        if (L.near) {
-          beam_response_near_singularity(c, L, mu[j], rb[j], tb[j]);
-        }
+        beam_response_near_singularity(c, L, mu[j], rb[j], tb[j]);
       }
     }
   }

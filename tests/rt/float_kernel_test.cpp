@@ -118,3 +118,39 @@ TEST_CASE("the float kernel follows the pseudo-spherical beam like the double ke
     CHECK(col.dir[10 * 64 + p] == Approx(col.mu0[p] * std::exp(-s)).epsilon(2e-6));
   }
 }
+
+TEST_CASE("the float kernel fixes up exactly the problems inside its singular band", "[rt][float]") {
+  // Layers with omega = 0.3, g = 0 (no delta scaling then): the Eddington coefficients (Meador &
+  // Weaver 1980, Table 1; common practice) give gamma1 = (7 - 4 omega)/4 = 1.45, gamma2 =
+  // -(1 - 4 omega)/4 = 0.05, k = sqrt(gamma1^2 - gamma2^2). mu0 is spread across 1/k so that some
+  // problems of one block fall inside the float kernel's band |1 - k mu0| < 1e-3 and others not;
+  // each must agree with the double kernel (whose band is 100x narrower) to float accuracy.
+  const double g1 = 1.45, g2 = 0.05, k = std::sqrt(g1 * g1 - g2 * g2);
+  Columns c(96, 3);
+  for (std::size_t i = 0; i < c.np; ++i) {
+    c.mu0[i] = (1.0 + (double(i) - 48.0) * 4e-5) / k;  // k mu0 - 1 from -1.9e-3 to +1.9e-3
+    c.ad[i] = c.af[i] = 0.3;
+    for (std::size_t l = 0; l < c.nl; ++l) {
+      c.tau[l * c.np + i] = 0.5;
+      c.omega[l * c.np + i] = 0.3;
+      c.g[l * c.np + i] = 0.0;
+    }
+  }
+  c.solve(Closure::delta_eddington, false);
+  const std::vector<double> dir = c.dir, dif = c.dif, up = c.up;
+  c.solve(Closure::delta_eddington, true);
+  std::size_t inside = 0;
+  for (std::size_t i = 0; i < c.np; ++i) {
+    if (std::abs(1.0 - k * c.mu0[i]) < 1e-3) ++inside;
+    const double incident = c.mu0[i];
+    for (std::size_t lev = 0; lev <= c.nl; ++lev) {
+      const std::size_t q = lev * c.np + i;
+      INFO("problem " << i << " level " << lev);
+      CHECK(std::abs(c.dif[q] - dif[q]) <= 1e-4 * incident);
+      CHECK(std::abs(c.up[q] - up[q]) <= 1e-4 * incident);
+      CHECK(std::abs(c.dir[q] - dir[q]) <= 1e-5 * incident);
+    }
+  }
+  CHECK(inside > 10);          // the band is really hit
+  CHECK(inside < c.np - 10);   // and so are problems outside it
+}
