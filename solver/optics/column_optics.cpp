@@ -119,31 +119,19 @@ std::shared_ptr<const ClearOptics> cached_clear_optics(const spectrum::Grid& gri
 }
 
 /// One layer of the mixing over its points (the arithmetic of OpticsMixer written out; Rayleigh,
-/// ozone, gas, aerosol in this order). A function of its own so that __restrict on the parameters
-/// lets the loop vectorise; kRf: also the Rayleigh share of the scattering.
-template <bool kRf>
-void mix_layer(std::size_t np, const double* __restrict rp, const double* __restrict op, const double* __restrict tg_row,
-               const double* __restrict ap, const double* __restrict wp, const double* __restrict gp_,
-               double* __restrict tau, double* __restrict om, double* __restrict gg, double* __restrict rf) {
-  constexpr double kMaxG = 1.0 - 1e-12;  // OpticsMixer's bound on |g|
+/// ozone, gas, aerosol in this order), given per point the layer's Rayleigh + ozone depth `ro`,
+/// aerosol depth `ap` and scattering depth `sp` (of the point's bin; only the gas depth differs
+/// between the k-terms of a bin). A function of its own so that __restrict on the parameters
+/// lets the loop vectorise.
+void mix_layer(std::size_t np, const double* __restrict ro, const double* __restrict tg_row, const double* __restrict ap,
+               const double* __restrict sp, double* __restrict tau, double* __restrict om) {
   for (std::size_t k = 0; k < np; ++k) {
-    const double r = rp[k], oz = op[k], tg = tg_row[k], a = ap[k];
-    const double w = wp[k], g = gp_[k];
-    const double t = ((r + oz) + tg) + a;
-    const double scat = r + w * a;
-    const double scat_g = g * w * a;
-    // Divisions by a safe denominator, then a select: branch-free, so the loop vectorises;
-    // the quotients are those of OpticsMixer wherever they are used.
-    const double t_safe = t > 0.0 ? t : 1.0, scat_safe = scat > 0.0 ? scat : 1.0;
-    const double w_mix = std::min(std::max(scat / t_safe, 0.0), 1.0);
-    const double g_mix = std::min(std::max(scat_g / scat_safe, -kMaxG), kMaxG);
+    const double t = (ro[k] + tg_row[k]) + ap[k];
+    // Division by a safe denominator, then a select: branch-free, so the loop vectorises.
+    const double t_safe = t > 0.0 ? t : 1.0;
+    const double w_mix = std::min(std::max(sp[k] / t_safe, 0.0), 1.0);
     tau[k] = t;
     om[k] = t > 0.0 ? w_mix : 0.0;
-    gg[k] = scat > 0.0 ? g_mix : 0.0;
-    if constexpr (kRf) {
-      const double f_ray = std::min(1.0, r / scat_safe);
-      rf[k] = scat > 0.0 ? f_ray : 0.0;
-    }
   }
 }
 
@@ -268,35 +256,47 @@ void PreparedColumn::mix_into(const MixedTarget& t) const {
   const std::vector<double>& to = tb.clear->ozone;
   // Mixing (the arithmetic of OpticsMixer, written out so that the loop over points vectorises:
   // layer outermost, every store contiguous). Order of the sums as in OpticsMixer: Rayleigh,
-  // ozone, gas, aerosol. Per layer, the per-bin values are first spread over the points (a plain
-  // copy loop; gathers are not generated for every target), then the arithmetic runs as one
-  // vector loop. The spread buffer is the thread's own, reused.
-  thread_local std::vector<double> spread;
-  spread.resize(5 * np);
-  double* __restrict rp = spread.data();
-  double* __restrict op = rp + np;
-  double* __restrict ap = rp + 2 * np;
-  double* __restrict wp = rp + 3 * np;
-  double* __restrict gp_ = rp + 4 * np;
+  // ozone, gas, aerosol. What is the same for every k-term of a bin (the scattering depth, the
+  // mixed asymmetry and Rayleigh share) is computed per bin; per layer the bin values are spread
+  // over the points (a plain copy loop; gathers are not generated for every target), then the
+  // per-point arithmetic (total depth, single-scattering albedo) runs as one vector loop. The
+  // buffers are the thread's own, reused.
+  constexpr double kMaxG = 1.0 - 1e-12;  // OpticsMixer's bound on |g|
+  const std::size_t nb = tb.wa.size();
+  thread_local std::vector<double> buf;
+  buf.resize(3 * np + 4 * nb);
+  double* __restrict ro = buf.data();
+  double* __restrict ap = ro + np;
+  double* __restrict sp = ro + 2 * np;
+  double* __restrict ro_b = ro + 3 * np;
+  double* __restrict sc_b = ro_b + nb;
+  double* __restrict g_b = sc_b + nb;
+  double* __restrict rf_b = g_b + nb;
   const std::size_t* bin = o.point_bin.data();
-  for (std::size_t k = 0; k < np; ++k) {
-    wp[k] = tb.wa[bin[k]];
-    gp_[k] = tb.ga[bin[k]];
-  }
   for (std::size_t l = 0; l < nl; ++l) {
-    for (std::size_t k = 0; k < np; ++k) {
-      const std::size_t b = bin[k];
-      rp[k] = tr[b * nl + l];
-      op[k] = to[b * nl + l];
-      ap[k] = tb.ta[b * nl + l];
+    for (std::size_t b = 0; b < nb; ++b) {
+      const double r = tr[b * nl + l], a = tb.ta[b * nl + l], w = tb.wa[b];
+      const double scat = r + w * a;
+      const double scat_g = tb.ga[b] * w * a;
+      const double scat_safe = scat > 0.0 ? scat : 1.0;
+      ro_b[b] = r + to[b * nl + l];
+      sc_b[b] = scat;
+      g_b[b] = scat > 0.0 ? std::min(std::max(scat_g / scat_safe, -kMaxG), kMaxG) : 0.0;
+      rf_b[b] = scat > 0.0 ? std::min(1.0, r / scat_safe) : 0.0;
     }
     const std::size_t at = l * t.stride + t.offset;
-    const double* tg = tb.gas->tau.data() + l * np;
-    if (t.rayleigh_fraction) {
-      mix_layer<true>(np, rp, op, tg, ap, wp, gp_, t.tau + at, t.omega + at, t.g + at, t.rayleigh_fraction + at);
-    } else {
-      mix_layer<false>(np, rp, op, tg, ap, wp, gp_, t.tau + at, t.omega + at, t.g + at, nullptr);
+    double* __restrict g_out = t.g + at;
+    double* __restrict rf_out = t.rayleigh_fraction ? t.rayleigh_fraction + at : nullptr;
+    for (std::size_t k = 0; k < np; ++k) {
+      const std::size_t b = bin[k];
+      ro[k] = ro_b[b];
+      ap[k] = tb.ta[b * nl + l];
+      sp[k] = sc_b[b];
+      g_out[k] = g_b[b];
     }
+    if (rf_out)
+      for (std::size_t k = 0; k < np; ++k) rf_out[k] = rf_b[bin[k]];
+    mix_layer(np, ro, tb.gas->tau.data() + l * np, ap, sp, t.tau + at, t.omega + at);
   }
 }
 
