@@ -264,7 +264,7 @@ void PreparedColumn::mix_into(const MixedTarget& t) const {
   constexpr double kMaxG = 1.0 - 1e-12;  // OpticsMixer's bound on |g|
   const std::size_t nb = tb.wa.size();
   thread_local std::vector<double> buf;
-  buf.resize(3 * np + 4 * nb);
+  buf.resize(3 * np + 5 * nb);
   double* __restrict ro = buf.data();
   double* __restrict ap = ro + np;
   double* __restrict sp = ro + 2 * np;
@@ -272,6 +272,7 @@ void PreparedColumn::mix_into(const MixedTarget& t) const {
   double* __restrict sc_b = ro_b + nb;
   double* __restrict g_b = sc_b + nb;
   double* __restrict rf_b = g_b + nb;
+  double* __restrict a_b = rf_b + nb;
   const std::size_t* bin = o.point_bin.data();
   for (std::size_t l = 0; l < nl; ++l) {
     for (std::size_t b = 0; b < nb; ++b) {
@@ -280,6 +281,7 @@ void PreparedColumn::mix_into(const MixedTarget& t) const {
       const double scat_g = tb.ga[b] * w * a;
       const double scat_safe = scat > 0.0 ? scat : 1.0;
       ro_b[b] = r + to[b * nl + l];
+      a_b[b] = a;
       sc_b[b] = scat;
       g_b[b] = scat > 0.0 ? std::min(std::max(scat_g / scat_safe, -kMaxG), kMaxG) : 0.0;
       rf_b[b] = scat > 0.0 ? std::min(1.0, r / scat_safe) : 0.0;
@@ -290,7 +292,7 @@ void PreparedColumn::mix_into(const MixedTarget& t) const {
     for (std::size_t k = 0; k < np; ++k) {
       const std::size_t b = bin[k];
       ro[k] = ro_b[b];
-      ap[k] = tb.ta[b * nl + l];
+      ap[k] = a_b[b];
       sp[k] = sc_b[b];
       g_out[k] = g_b[b];
     }
