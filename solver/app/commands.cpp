@@ -1,6 +1,8 @@
 #include "app/commands.hpp"
 
+#include <cerrno>
 #include <cstdio>
+#include <cstring>
 #include <filesystem>
 #include <iostream>
 #include <optional>
@@ -200,8 +202,9 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
     }
     const io::CheckpointContents all = io::read_checkpoint(ckpt);
     io::write_sweep_file(out, study, templ, ckpt, all);
-    fs::remove(ckpt, ec);
+    // The checkpoint goes only once every file is written: a failed CSV can still be resumed.
     if (!e.output.csv.empty()) io::write_sweep_summary_csv(out, e.output.csv, study);
+    fs::remove(ckpt, ec);
     if (!o.quiet) {
       const double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
       std::cout << "solstrata run: " << o.experiment << ": " << n << (study.is_time_series() ? " cases" : " scenarios");
@@ -295,6 +298,16 @@ int run_command(const RunOptions& o) {
       } else {
         std::cerr << "solstrata run: " << p.what << " '" << p.path.string() << "': " << m << "\n";
       }
+      return kExitBadInput;
+    }
+  }
+  // A sweep appends to the checkpoint of an interrupted run (--resume): it must be writable too.
+  if (!study->plan().axes.empty() || study->is_time_series()) {
+    const std::filesystem::path ckpt = e.output.file.string() + ".partial";
+    std::error_code ec;
+    if (std::filesystem::exists(ckpt, ec) && ::access(ckpt.c_str(), R_OK | W_OK) != 0) {
+      std::cerr << "solstrata run: checkpoint '" << ckpt.string() << "' is not writable (or not readable): "
+                << std::strerror(errno) << "\n";
       return kExitBadInput;
     }
   }

@@ -6,6 +6,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
+#include <cstdlib>
 #include <filesystem>
 #include <iostream>
 #include <sstream>
@@ -17,6 +19,7 @@
 #include "experiment/closest_name.hpp"
 #include "experiment/experiment.hpp"
 #include "rt/closure.hpp"
+#include "io/hdf5_writer.hpp"
 #include "version.hpp"
 
 namespace {
@@ -256,6 +259,18 @@ int usage_error(const std::string& command, const std::string& message) {
 
 }  // namespace
 
+/// The exit code of a command that writes files. After a write the system refused (disk full,
+/// file-size limit) an HDF5 file may be abandoned unclosed, and HDF5's shutdown at exit would
+/// crash on it (io::hdf5_file_abandoned): then the streams are flushed and the process ends
+/// without the library's exit handlers. The temporary file and the lock are already removed.
+static int end_after_writing(int rc) {
+  if (!io::hdf5_file_abandoned()) return rc;
+  std::cout.flush();
+  std::cerr.flush();
+  std::fflush(nullptr);
+  std::_Exit(rc);
+}
+
 int main(int argc, char** argv) {
   std::vector<std::string> args(argv + 1, argv + argc);
 
@@ -352,9 +367,9 @@ int main(int argc, char** argv) {
               << "built-in data: " << experiment::default_data_dir().string() << "\n";
     return app::kExitOk;
   }
-  if (command_name == "run") return app::run_command(run_options);
+  if (command_name == "run") return end_after_writing(app::run_command(run_options));
   if (command_name == "check") return app::check_command(check_options);
-  if (command_name == "accuracy") return app::accuracy_command(accuracy_options);
+  if (command_name == "accuracy") return end_after_writing(app::accuracy_command(accuracy_options));
   if (command_name == "demo") {
     demo_options.closure = *rt::parse_closure(closure_name);  // checked by one_of
     return app::run_demo(demo_options, std::cout, std::cerr);

@@ -4,9 +4,13 @@
 #include <hdf5_hl.h>
 
 #include <algorithm>
+#include <atomic>
+#include <cerrno>
 #include <cmath>
+#include <cstring>
 #include <cstdio>
 #include <functional>
+#include <memory>
 #include <optional>
 #include <utility>
 
@@ -48,6 +52,9 @@ std::string format_value(double x) {
 
 }  // namespace
 
+/// Set once a broken file was abandoned (hdf5_file_abandoned()).
+static std::atomic<bool> g_abandoned{false};
+
 struct Hdf5Writer::Impl {
   struct Dimension {
     std::string name;
@@ -63,10 +70,16 @@ struct Hdf5Writer::Impl {
   };
 
   AtomicOutput output;
-  std::optional<H5::H5File> file;
+  std::unique_ptr<H5::H5File> file;
   std::vector<Dimension> dimensions;
   std::vector<RowVariable> row_variables;
   std::vector<std::string> names;  // every dataset written
+  /// An HDF5 call failed (a write refused by the system: disk full, EFBIG): the library's state
+  /// of this file can no longer be trusted. HDF5 1.10 crashes (SIGSEGV in H5F__close, measured
+  /// with a file-size limit) when a file is closed after a failed dataset or file close, so a
+  /// broken file is never touched again: its identifiers are abandoned (see abandon()) and the
+  /// temporary is removed.
+  bool broken = false;
 
   explicit Impl(const std::filesystem::path& path) : output(path) {}
 
@@ -82,12 +95,42 @@ struct Hdf5Writer::Impl {
   template <class F>
   auto guarded(const std::string& variable, const char* action, F&& f) -> decltype(f()) {
     if (!file) fail(variable, "the writer is closed (commit() was called)");
+    if (broken) fail(variable, "an earlier write to this file failed");
+    errno = 0;  // so that system_error_text() reports this call's cause, not an old one
     try {
       return f();
     } catch (const H5::Exception& e) {
+      broken = true;
       fail(variable, std::string("HDF5 failed to ") + action + ": " + e.getFuncName() + ": " +
-                         e.getDetailMsg());
+                         e.getDetailMsg() + system_error_text());
     }
+  }
+
+  /// The system's reason for the last failed write ("" when errno says nothing): HDF5's own
+  /// message does not say why the file system refused (the cause is in its error stack only).
+  static std::string system_error_text() {
+    const int err = errno;
+    if (err == EFBIG || err == ENOSPC || err == EDQUOT || err == EIO || err == EROFS) return std::string(" (") + std::strerror(err) + ")";
+    return {};
+  }
+
+  /// Hands the file and the datasets this writer holds to a holder that is never destroyed, so
+  /// that nothing closes them: used only for a broken file (see broken). The holder stays
+  /// reachable (no leak report); the process must end without shutting HDF5 down
+  /// (hdf5_file_abandoned()).
+  void abandon() noexcept {
+    struct Abandoned {
+      std::unique_ptr<H5::H5File> file;
+      std::vector<Dimension> dimensions;
+      std::vector<RowVariable> row_variables;
+    };
+    static auto* holder = new std::vector<Abandoned>();
+    try {
+      holder->push_back({std::move(file), std::move(dimensions), std::move(row_variables)});
+    } catch (...) {
+      (void)file.release();  // no memory for the holder: leak the file rather than close it
+    }
+    g_abandoned.store(true);
   }
 
   void claim_name(const std::string& name) {
@@ -273,7 +316,11 @@ Hdf5Writer::Hdf5Writer(const std::filesystem::path& path) : impl_(std::make_uniq
     H5::FileAccPropList access;
     // Closing the file closes everything in it, so commit() never renames a half-flushed file.
     access.setFcloseDegree(H5F_CLOSE_STRONG);
-    impl_->file.emplace(impl_->output.temp_path().string(), H5F_ACC_TRUNC, create, access);
+    // No sieve buffer: raw data goes to the file inside H5Dwrite, so that a refused write fails
+    // there (and is reported) rather than when a dataset is closed, whose failure HDF5 1.10
+    // cannot recover from.
+    access.setSieveBufSize(0);
+    impl_->file = std::make_unique<H5::H5File>(impl_->output.temp_path().string(), H5F_ACC_TRUNC, create, access);
   } catch (const H5::Exception& e) {
     throw OutputError(impl_->where("") + ": HDF5 cannot create the file " +
                       impl_->output.temp_path().string() + ": " + e.getDetailMsg());
@@ -282,6 +329,10 @@ Hdf5Writer::Hdf5Writer(const std::filesystem::path& path) : impl_(std::make_uniq
 
 Hdf5Writer::~Hdf5Writer() {
   if (!impl_) return;
+  if (impl_->broken) {
+    impl_->abandon();
+    return;  // impl_->output's destructor removes the temporary
+  }
   try {
     impl_->row_variables.clear();
     impl_->dimensions.clear();
@@ -534,10 +585,20 @@ void Hdf5Writer::set_attribute(const std::string& variable, const std::string& n
   });
 }
 
+bool hdf5_file_abandoned() { return g_abandoned.load(); }
+
 void Hdf5Writer::commit() {
+  // Each dataset is closed on its own first, so that a failure is seen (and the file marked
+  // broken) before the file itself is closed; a failed close leaves the rest abandoned.
   impl_->guarded("", "close the file", [&] {
-    impl_->row_variables.clear();
-    impl_->dimensions.clear();
+    while (!impl_->row_variables.empty()) {
+      impl_->row_variables.back().data.close();
+      impl_->row_variables.pop_back();
+    }
+    while (!impl_->dimensions.empty()) {
+      impl_->dimensions.back().scale.close();
+      impl_->dimensions.pop_back();
+    }
     impl_->file->close();
   });
   impl_->file.reset();

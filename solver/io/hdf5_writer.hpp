@@ -42,6 +42,10 @@ struct VariableAttributes {
 /// finite: NaN or infinity in a variable is an OutputError. Not thread-safe: use one writer from
 /// one thread. Constructing a writer turns off HDF5's automatic printing of error stacks for the
 /// process (the library never prints; errors arrive as OutputError).
+///
+/// A write the system refuses (disk full, file-size limit) throws OutputError with the system's
+/// reason; the temporary is then removed, and the file is never touched by HDF5 again (HDF5
+/// 1.10 crashes when such a file is closed): see hdf5_file_abandoned().
 class Hdf5Writer {
  public:
   /// Starts a new file that will replace `path` on commit().
@@ -102,6 +106,7 @@ class Hdf5Writer {
   void set_attribute(const std::string& variable, const std::string& name, std::span<const int> values);
 
   /// Closes the file and moves it to its final path. The writer is unusable afterwards.
+  /// A failed close (a write refused at the end) throws OutputError and removes the temporary.
   void commit();
   /// The final path.
   [[nodiscard]] const std::filesystem::path& path() const;
@@ -112,5 +117,11 @@ class Hdf5Writer {
   struct Impl;
   std::unique_ptr<Impl> impl_;
 };
+
+/// True once a writer of this process met a refused write and abandoned its file without
+/// closing it. HDF5 then cannot be shut down safely (its library shutdown at exit closes the
+/// abandoned file and crashes, measured with HDF5 1.10.8): the program should flush its own
+/// streams and end with std::_Exit instead of returning from main.
+bool hdf5_file_abandoned();
 
 }  // namespace solstrata::io

@@ -308,24 +308,8 @@ TEST_CASE("the bad-input catalogue: exit 2, file, line and key named, nothing le
   }
 }
 
-TEST_CASE("an unreadable experiment or profile is refused with exit 2", "[app][catalogue]") {
-  if (::geteuid() == 0) {
-    WARN("running as root: file permissions do not stop root, so the unreadable-file rows are skipped");
-    return;
-  }
-  TempDir dir("catalogue_perm");
-  write_files(dir.path(), {{"exp.yaml", kWithProfile}, {"prof.yaml", profile(kGoodLevels)}, {"closed.yaml", kSun}});
-  ::chmod((dir / "prof.yaml").c_str(), 0);
-  ::chmod((dir / "closed.yaml").c_str(), 0);
-  const Outcome a = invoke(dir.path(), "run exp.yaml -q");
-  CHECK(a.code == 2);
-  CHECK(a.err.find("prof.yaml") != std::string::npos);
-  const Outcome b = invoke(dir.path(), "run closed.yaml -q");
-  CHECK(b.code == 2);
-  CHECK(b.err.find("closed.yaml") != std::string::npos);
-  ::chmod((dir / "prof.yaml").c_str(), 0644);
-  ::chmod((dir / "closed.yaml").c_str(), 0644);
-}
+// Unreadable experiment, profile, spectrum and scenario files (permission bits, which do not stop
+// root): tests/app/os_fault_test.cpp, run as an unprivileged user.
 
 TEST_CASE("a byte order mark and CRLF line endings load like plain files", "[app][catalogue]") {
   const std::string bom = "\xEF\xBB\xBF";
