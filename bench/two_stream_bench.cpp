@@ -131,6 +131,24 @@ int main(int argc, char** argv) {
                 1e9 * t_libf / layer_solves, 1e9 * t_limf / layer_solves);
   }
   {
+    // With the pseudo-spherical beam (ColumnBatch::beam_path, as every atmosphere run uses by
+    // default): slant factors of a 64-layer shell at each problem's zenith angle.
+    std::vector<double> path(nl * np);
+    for (std::size_t i = 0; i < np; ++i)
+      for (std::size_t l = 0; l < nl; ++l) path[l * np + i] = (1.0 / p.mu0[i]) * (1.0 - 0.002 * double(l) / double(nl));
+    for (std::size_t i = 0; i < nl * np; ++i) path[i] = std::max(1.0, path[i]);
+    ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
+    in.beam_path = path;
+    for (bool single : {false, true}) {
+      SolverOptions o;
+      o.block_size = block;
+      o.single_precision = single;
+      const double t = bench::best_seconds(reps, [&] { solve_columns_unchecked(in, o, {p.d, p.f, p.u}, work); });
+      std::printf("batched delta_eddington%s with slant paths: %.2f ns per layer-solve\n", single ? " float" : "",
+                  1e9 * t / layer_solves);
+    }
+  }
+  {
     SolverOptions o;
     o.block_size = block;
     const ColumnBatch in{np, nl, p.tau, p.omega, p.g, p.mu0, p.sol, p.ad, p.af};
