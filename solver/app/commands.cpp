@@ -316,18 +316,9 @@ int run_command(const RunOptions& o) {
 #if SOLSTRATA_MPI
   std::cerr.rdbuf(cerr_buffer);
   std::cerr.clear();
-  if (!study->plan().axes.empty() && !study->is_time_series()) return run_sweep_mpi(*study, e, o, &g_stop);
-  if (mpi.size() > 1) {
-    if (study->is_time_series()) {
-      if (mpi.rank() == 0) {
-        std::cerr << "solstrata run: " << o.experiment << ": time series do not run on several MPI ranks yet; "
-                  << "run it with one process (without mpirun, or mpirun -n 1)\n";
-      }
-      return kExitBadInput;
-    }
-    // One scenario: rank 0 runs it, the others have nothing to do.
-    if (mpi.rank() != 0) return kExitOk;
-  }
+  if (!study->plan().axes.empty() || study->is_time_series()) return run_sweep_mpi(*study, e, o, &g_stop);
+  // One scenario: rank 0 runs it, the others have nothing to do.
+  if (mpi.rank() != 0) return kExitOk;
 #endif
   // One run per output file at a time: a second run on the same file refuses before any work.
   std::optional<io::OutputLock> lock;

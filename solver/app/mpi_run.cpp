@@ -10,10 +10,12 @@
 #include <cstdlib>
 #include <filesystem>
 #include <iostream>
+#include <map>
 #include <optional>
 #include <string>
 #include <vector>
 
+#include "app/summary_table.hpp"
 #include "experiment/input_error.hpp"
 #include "experiment/run.hpp"
 #include "experiment/sweep_run.hpp"
@@ -138,13 +140,15 @@ std::vector<Found> read_my_checkpoints(const std::vector<fs::path>& files, const
   return found;
 }
 
-/// Sends each found record to the rank whose row block holds it; returns this rank's rows in order.
-/// Throws OutputError (on this rank) when a row of its block is in no checkpoint.
+/// Sends each found record to the rank whose row block holds it, and the cases beyond the rows
+/// (the daily-total nodes of a time series) to rank 0, which reduces them into daily totals.
+/// Returns this rank's rows in order; `beyond` gets the cases beyond the rows (rank 0). Throws
+/// OutputError (on this rank) when a row of its block is in no checkpoint.
 std::vector<io::RecordLocation> gather_block(const std::vector<Found>& found, const io::RankBlocks& blocks, int rank,
-                                             int size) {
+                                             int size, std::map<std::uint64_t, io::RecordLocation>& beyond) {
   std::vector<std::vector<std::uint64_t>> out(static_cast<std::size_t>(size));
   for (const Found& f : found) {
-    auto& v = out[static_cast<std::size_t>(blocks.owner(f.scenario))];
+    auto& v = out[f.scenario < blocks.rows ? static_cast<std::size_t>(blocks.owner(f.scenario)) : 0];
     v.insert(v.end(), {f.scenario, f.file, f.offset});
   }
   std::vector<int> send_counts(static_cast<std::size_t>(size)), recv_counts(static_cast<std::size_t>(size));
@@ -168,6 +172,10 @@ std::vector<io::RecordLocation> gather_block(const std::vector<Found>& found, co
   std::vector<io::RecordLocation> where(hi - lo);
   std::vector<char> have(hi - lo, 0);
   for (std::size_t i = 0; i + 2 < recv.size(); i += 3) {
+    if (recv[i] >= blocks.rows) {
+      beyond[recv[i]] = {recv[i + 1], recv[i + 2]};
+      continue;
+    }
     where[recv[i] - lo] = {recv[i + 1], recv[i + 2]};
     have[recv[i] - lo] = 1;
   }
@@ -304,12 +312,15 @@ int run_sweep_mpi(const experiment::Study& study, const experiment::Experiment& 
   }
 
   // Which checkpoint holds each row of this rank's block of the file.
-  const io::RankBlocks blocks = io::rank_blocks(n, size);
+  // The rows of the file: the scenarios of a sweep, the steps of a time series.
+  const bool series = study.is_time_series();
+  const io::RankBlocks blocks = io::rank_blocks(series ? study.plan().time.n_steps : n, size);
   const std::vector<fs::path> files = checkpoint_files(out, size, left);
   std::vector<io::RecordLocation> where;
+  std::map<std::uint64_t, io::RecordLocation> nodes;  // rank 0: daily-total nodes of a series
   try {
     std::optional<io::CheckpointContents> unused;
-    where = gather_block(read_my_checkpoints(files, out, rank, size, header, unused), blocks, rank, size);
+    where = gather_block(read_my_checkpoints(files, out, rank, size, header, unused), blocks, rank, size, nodes);
   } catch (const std::exception& ex) {
     std::cerr << who << ex.what() << "\n";
     code = kExitRunFailed;
@@ -324,7 +335,17 @@ int run_sweep_mpi(const experiment::Study& study, const experiment::Experiment& 
     try {
       result.emplace(out);
       temp = result->temp_path().string();
-      io::write_sweep_skeleton(temp, study, *templ, blocks.granule);
+      if (series) {
+        const io::RecordLookup node = [&](std::size_t i, std::vector<double>& values) {
+          const auto it = nodes.find(i);
+          if (it == nodes.end()) return false;
+          values = io::read_checkpoint_record(files[it->second.file], it->second.offset, record_values);
+          return true;
+        };
+        io::write_time_series_skeleton(temp, study, *templ, blocks.granule, record_values, node);
+      } else {
+        io::write_sweep_skeleton(temp, study, *templ, blocks.granule);
+      }
     } catch (const std::exception& ex) {
       std::cerr << "solstrata run: writing " << out.string() << " failed: " << ex.what() << "\n";
       code = kExitRunFailed;
@@ -363,12 +384,13 @@ int run_sweep_mpi(const experiment::Study& study, const experiment::Experiment& 
   if ((code = agree(code)) != 0) return code;
   if (say) {
     const double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-    std::cout << "solstrata run: " << o.experiment << ": " << n << " scenarios";
+    std::cout << "solstrata run: " << o.experiment << ": " << n << (series ? " cases" : " scenarios");
     if (from_checkpoints) std::cout << " (" << from_checkpoints << " from the checkpoints)";
     std::cout << " in " << secs << " s on " << size << " rank(s) x " << opt.threads << " thread(s) (rank 0: "
               << compute_seconds << " s to solve)\n";
     std::cout << "parallel write: " << double(bytes) / 1e6 << " MB of rows in " << write_seconds << " s ("
               << (write_seconds > 0 ? double(bytes) / 1e6 / write_seconds : 0.0) << " MB/s)\n";
+    if (series) print_time_series_summary(std::cout, out, study);
     if (with_effect) std::cout << "aerosol radiative effects: aerosol_effect_toa/surface/atmosphere (W m-2, negative = cooling)\n";
     std::cout << "caution: " << experiment::kSolarCaution << "\n";
     std::cout << "wrote " << out.string();

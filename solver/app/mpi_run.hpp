@@ -26,7 +26,9 @@ class MpiSession {
   int rank_ = 0, size_ = 1;
 };
 
-/// Runs a sweep on every rank of MPI_COMM_WORLD; every rank calls it with the same study.
+/// Runs a sweep or a time series on every rank of MPI_COMM_WORLD; every rank calls it with the
+/// same study. (A time series: its cases are the steps and the daily-total nodes; the rows of the
+/// file are the steps, and rank 0 reduces the nodes into the daily totals.)
 /// The scenarios still to run are cut into one contiguous block per rank; each rank runs its
 /// block on its threads (-j, default: the CPUs mpirun lets it use) and appends each finished
 /// scenario to its own checkpoint OUT.h5.partial.rank<R>. `--resume` (with any number of ranks)

@@ -3,6 +3,7 @@
 
 #include <cstdint>
 #include <filesystem>
+#include <functional>
 #include <string>
 #include <vector>
 
@@ -48,6 +49,18 @@ std::vector<RowDataset> sweep_row_datasets(const experiment::Study& study, const
 /// coordinates; scenario_complete is 1 everywhere. Written at `path` atomically. Sweeps only.
 void write_sweep_skeleton(const std::filesystem::path& path, const experiment::Study& study,
                           const experiment::ScenarioResult& templ, std::size_t granule);
+
+/// A finished case's checkpoint record by case index: fills `values` and returns true, or
+/// returns false when no checkpoint holds the case.
+using RecordLookup = std::function<bool(std::size_t, std::vector<double>&)>;
+
+/// The time-series counterpart of write_sweep_skeleton: the file write_time_series_file makes of
+/// a complete series, with the per-step rows (leading dimension "time", the variables of
+/// sweep_row_datasets) deferred to the ranks; the daily totals are computed here from the
+/// records of the quadrature nodes (cases n_steps and up), which `nodes` looks up.
+void write_time_series_skeleton(const std::filesystem::path& path, const experiment::Study& study,
+                                const experiment::ScenarioResult& templ, std::size_t granule,
+                                std::size_t record_values, const RecordLookup& nodes);
 
 /// The file of a time series (write_sweep_file calls it for a time-series study): a CF `time`
 /// dimension and coordinate over the steps, with the sun's position per step; daily totals on a
