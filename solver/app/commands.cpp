@@ -22,6 +22,9 @@
 #include "io/result_fields.hpp"
 #include "io/result_file.hpp"
 #include "io/sweep_file.hpp"
+#if SOLSTRATA_MPI
+#include "app/mpi_run.hpp"
+#endif
 
 #include <atomic>
 #include <chrono>
@@ -262,6 +265,19 @@ int check_command(const RunOptions& o) {
 }
 
 int run_command(const RunOptions& o) {
+#if SOLSTRATA_MPI
+  // Every rank reads and checks the same inputs; only rank 0 reports what they all find.
+  const MpiSession mpi;
+  std::streambuf* const cerr_buffer = std::cerr.rdbuf();
+  if (mpi.rank() != 0) std::cerr.rdbuf(nullptr);
+  struct RestoreCerr {
+    std::streambuf* buffer;
+    ~RestoreCerr() {
+      std::cerr.rdbuf(buffer);
+      std::cerr.clear();
+    }
+  } restore_cerr{cerr_buffer};
+#endif
   // Ctrl-C / SIGTERM from here on stop a sweep cleanly (finished scenarios are kept).
   g_stop.store(false);
   std::signal(SIGINT, on_signal);
@@ -311,6 +327,13 @@ int run_command(const RunOptions& o) {
       return kExitBadInput;
     }
   }
+#if SOLSTRATA_MPI
+  std::cerr.rdbuf(cerr_buffer);
+  std::cerr.clear();
+  if (!study->plan().axes.empty() || study->is_time_series()) return run_sweep_mpi(*study, e, o, &g_stop);
+  // One scenario: rank 0 runs it, the others have nothing to do.
+  if (mpi.rank() != 0) return kExitOk;
+#endif
   // One run per output file at a time: a second run on the same file refuses before any work.
   std::optional<io::OutputLock> lock;
   try {

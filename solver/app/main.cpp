@@ -177,7 +177,12 @@ void setup_run(CLI::App& app, app::RunOptions& o) {
       "The output file is written under a temporary name and renamed when complete: a failed run\n"
       "leaves no file behind. A sweep records each finished scenario in OUT.h5.partial (append-only,\n"
       "checksummed) as it goes; after Ctrl-C, SIGTERM or a crash, 'solstrata run EXP.yaml --resume'\n"
-      "continues where it stopped and ends with the same file as an uninterrupted run.\n\n" +
+      "continues where it stopped and ends with the same file as an uninterrupted run.\n"
+#if SOLSTRATA_MPI
+      "Under mpirun (this is an MPI build), the cases are split over the ranks, each rank keeps its\n"
+      "own checkpoint OUT.h5.partial.rank<R>, and --resume works with any number of ranks.\n"
+#endif
+      "\n" +
       std::string(kExitCodes));
 }
 

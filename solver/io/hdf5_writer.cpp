@@ -22,9 +22,6 @@ namespace {
 /// the prefix (netCDF-C appends the length in a 10-wide field, as done here).
 constexpr const char* kNotAVariable = "This is a netCDF dimension but not a netCDF variable.";
 
-/// netCDF's default fill value for doubles (NC_FILL_DOUBLE, from memory: 9.9692099683868690e+36).
-constexpr double kFillDouble = 9.9692099683868690e+36;
-
 /// Rows per chunk of a growing placeholder dimension (it is never written, only extended).
 constexpr hsize_t kScaleChunk = 1024;
 
@@ -73,6 +70,7 @@ struct Hdf5Writer::Impl {
   std::unique_ptr<H5::H5File> file;
   std::vector<Dimension> dimensions;
   std::vector<RowVariable> row_variables;
+  std::size_t rank_granule = 0;  // defer_rows_to_ranks (0: rows are written here)
   std::vector<std::string> names;  // every dataset written
   /// An HDF5 call failed (a write refused by the system: disk full, EFBIG): the library's state
   /// of this file can no longer be trusted. HDF5 1.10 crashes (SIGSEGV in H5F__close, measured
@@ -442,7 +440,7 @@ void Hdf5Writer::write(const std::string& name, const std::vector<std::string>& 
 }
 
 void Hdf5Writer::define_rows(const std::string& name, const std::vector<std::string>& dimensions,
-                             const VariableAttributes& attributes) {
+                             const VariableAttributes& attributes, double fill) {
   impl_->check_attributes(name, attributes, true);
   if (dimensions.empty()) impl_->fail(name, "a row variable needs at least one dimension");
   const std::vector<std::size_t> idx = impl_->resolve(name, dimensions);
@@ -467,10 +465,17 @@ void Hdf5Writer::define_rows(const std::string& name, const std::vector<std::str
     hsize_t rows = std::max<hsize_t>(1, 8192 / std::max<std::size_t>(1, per_row));
     const Impl::Dimension& first = impl_->dimensions[idx[0]];
     if (!first.growing) rows = std::min<hsize_t>(rows, std::max<std::size_t>(1, first.size));
+    if (impl_->rank_granule > 0) {
+      hsize_t p = 1;
+      while (2 * p <= std::min<hsize_t>(rows, impl_->rank_granule)) p *= 2;
+      rows = p;
+    }
     chunk[0] = rows;
     H5::DSetCreatPropList plist = Impl::creation_list();
     plist.setChunk(static_cast<int>(chunk.size()), chunk.data());
-    plist.setFillValue(H5::PredType::NATIVE_DOUBLE, &kFillDouble);
+    plist.setFillValue(H5::PredType::NATIVE_DOUBLE, &fill);
+    // Every row is written by the ranks: filling the storage first would write the data twice.
+    if (impl_->rank_granule > 0) plist.setFillTime(H5D_FILL_TIME_NEVER);
     const H5::DataSpace space(static_cast<int>(shape.size()), shape.data(), max_shape.data());
     H5::DataSet ds = impl_->file->createDataSet(name, H5::PredType::NATIVE_DOUBLE, space, plist);
     impl_->attach_scales(ds, name, idx);
@@ -538,6 +543,13 @@ void Hdf5Writer::write_rows(const std::string& name, std::size_t row, std::span<
     const H5::DataSpace memory_space(1, &n);
     it->data.write(values.data(), H5::PredType::NATIVE_DOUBLE, memory_space, file_space);
   });
+}
+
+void Hdf5Writer::defer_rows_to_ranks(std::size_t granule) {
+  if (granule == 0 || (granule & (granule - 1)) != 0) {
+    impl_->fail("", "the row granule of a parallel write must be a power of two, got " + std::to_string(granule));
+  }
+  impl_->rank_granule = granule;
 }
 
 void Hdf5Writer::flush() {

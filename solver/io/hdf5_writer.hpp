@@ -20,6 +20,9 @@
 
 namespace solstrata::io {
 
+/// netCDF's default fill value for doubles (NC_FILL_DOUBLE, from memory: 9.9692099683868690e+36).
+inline constexpr double kNetcdfFillDouble = 9.9692099683868690e+36;
+
 /// The attributes every variable carries (CF conventions).
 struct VariableAttributes {
   /// UDUNITS unit string, e.g. "W m-2", "hPa", "nm"; "1" for dimensionless. Required for numeric
@@ -81,9 +84,10 @@ class Hdf5Writer {
 
   /// Declares a double variable written row by row along its first dimension (fixed or growing)
   /// with write_row(); chunked one row per chunk. Rows not yet written read as the netCDF
-  /// default fill value for doubles, 9.969209968386869e36.
+  /// default fill value for doubles, 9.969209968386869e36 (or `fill`: the MPI skeleton matches
+  /// variables that the serial file writes at once, whose HDF5 fill value is HDF5's default 0).
   void define_rows(const std::string& name, const std::vector<std::string>& dimensions,
-                   const VariableAttributes& attributes);
+                   const VariableAttributes& attributes, double fill = kNetcdfFillDouble);
   /// Writes row `row` (all values for one index of the first dimension, C order over the rest).
   /// A growing first dimension is extended to row + 1 when needed.
   void write_row(const std::string& name, std::size_t row, std::span<const double> values);
@@ -91,6 +95,12 @@ class Hdf5Writer {
   void write_rows(const std::string& name, std::size_t row, std::span<const double> values);
   /// Pushes everything written so far from HDF5's caches to the (temporary) file.
   void flush();
+  /// For row variables defined from now on, every row will be written later by other writers
+  /// (the ranks of an MPI run, io/parallel_rows.hpp), not by this one: no fill value is written
+  /// when their storage is allocated (the fill value is still declared), and each chunk holds a
+  /// power of two rows dividing `granule` (a power of two), so that no chunk straddles the row
+  /// blocks of two ranks (blocks are multiples of `granule`).
+  void defer_rows_to_ranks(std::size_t granule);
 
   /// A text attribute on a variable, or on the file when `variable` is empty (global).
   void set_attribute(const std::string& variable, const std::string& name, std::string_view value);

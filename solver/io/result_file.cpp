@@ -130,13 +130,12 @@ void set_field_attributes(Hdf5Writer& w, const Field& f) {
 }
 
 RecordRows::RecordRows(Hdf5Writer& w, const std::vector<Field>& fields, const std::string& leading_dimension,
-                       const std::vector<std::string>& chosen)
-    : w_(w) {
-  for (const Field& f : fields) {
-    if (!f.per_scenario || !f.texts.empty()) continue;
-    slots_.push_back({&f, values_, f.values.size(), experiment::output_selected(chosen, f.name), {}});
-    values_ += f.values.size();
-  }
+                       const std::vector<std::string>& chosen, bool deferred)
+    : w_(w), deferred_(deferred) {
+  for_each_record_field(fields, [&](const Field& f, std::size_t offset) {
+    slots_.push_back({&f, offset, f.values.size(), experiment::output_selected(chosen, f.name), {}});
+    values_ = offset + f.values.size();
+  });
   for (const Slot& s : slots_) {
     if (!s.keep) continue;
     std::vector<std::string> dims{leading_dimension};
@@ -159,6 +158,10 @@ bool RecordRows::has(const std::string& name) const {
 }
 
 void RecordRows::add(const double* record) {
+  if (deferred_) {
+    ++rows_;
+    return;
+  }
   if (rows_ - block_start_ == block_) flush();
   for (Slot& s : slots_) {
     if (!s.keep) continue;
@@ -256,20 +259,24 @@ std::string unit_of_key(const std::string& path) {
 }
 }  // namespace
 
-void write_sweep_file(const std::filesystem::path& path, const experiment::Study& study,
-                      const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
-                      const CheckpointContents& contents, bool partial) {
+namespace {
+/// The aerosol radiative effects: three values after the fields in a record.
+constexpr const char* kEffectNames[3] = {"aerosol_effect_toa", "aerosol_effect_surface", "aerosol_effect_atmosphere"};
+
+/// The sweep file, from `checkpoint` and `contents`, or (both null) its skeleton with the rows of
+/// the per-scenario variables deferred to the ranks of an MPI run (`granule`).
+void write_sweep(const std::filesystem::path& path, const experiment::Study& study,
+                 const experiment::ScenarioResult& templ, const std::filesystem::path* checkpoint_path,
+                 const CheckpointContents* contents_ptr, bool partial, std::size_t granule) {
   // netCDF's default fill value for doubles (NC_FILL_DOUBLE): readers show it as missing.
   constexpr double kFill = detail::kFill;
+  const bool deferred = contents_ptr == nullptr;
   const std::vector<std::string>& chosen = study.base().output.variables;
   const std::size_t n = study.size();
-  if (study.is_time_series()) {
-    write_time_series_file(path, study, templ, checkpoint, contents, partial);
-    return;
-  }
   const bool with_effect = study.computes_aerosol_effect();
   const std::vector<Field> fields = result_fields(templ.result);
   Hdf5Writer w(path);
+  if (deferred) w.defer_rows_to_ranks(granule);
   add_result_dimensions(w, templ.result);
   w.add_dimension("scenario", n);
 
@@ -300,14 +307,17 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
   }
 
   // Per-scenario variables, written in blocks of scenarios.
-  RecordRows rows(w, fields, "scenario", chosen);
+  RecordRows rows(w, fields, "scenario", chosen, deferred);
   const std::size_t offset = rows.record_values();
-  if (offset + (with_effect ? 3 : 0) != contents.header.record_values) {
+  std::vector<double> toa(with_effect ? n : 0, kFill), sfc(with_effect ? n : 0, kFill), atm(with_effect ? n : 0, kFill);
+  std::vector<int> complete(n, deferred ? 1 : 0);
+  const CheckpointContents empty;
+  const CheckpointContents& contents = deferred ? empty : *contents_ptr;
+  const std::filesystem::path checkpoint = deferred ? std::filesystem::path() : *checkpoint_path;
+  if (!deferred && offset + (with_effect ? 3 : 0) != contents.header.record_values) {
     throw OutputError(checkpoint.string() + ": record layout does not match this experiment");
   }
-  std::vector<double> toa(with_effect ? n : 0, kFill), sfc(with_effect ? n : 0, kFill), atm(with_effect ? n : 0, kFill);
-  std::vector<int> complete(n, 0);
-  for (std::size_t i = 0; i < n; ++i) {
+  for (std::size_t i = 0; i < n && !deferred; ++i) {
     const auto it = contents.offsets.find(i);
     if (it == contents.offsets.end()) {
       if (!partial) throw OutputError(checkpoint.string() + ": scenario " + std::to_string(i) + " is missing");
@@ -331,13 +341,15 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
       const std::vector<double>* values;
       std::string long_name;
     } effects[] = {
-        {"aerosol_effect_toa", &toa, "instantaneous aerosol radiative effect at the top of the atmosphere" + sign},
-        {"aerosol_effect_surface", &sfc, "instantaneous aerosol radiative effect at the surface" + sign},
-        {"aerosol_effect_atmosphere", &atm, "instantaneous aerosol radiative effect in the atmosphere (TOA effect minus surface effect; positive = aerosol heats the air)"},
+        {kEffectNames[0], &toa, "instantaneous aerosol radiative effect at the top of the atmosphere" + sign},
+        {kEffectNames[1], &sfc, "instantaneous aerosol radiative effect at the surface" + sign},
+        {kEffectNames[2], &atm, "instantaneous aerosol radiative effect in the atmosphere (TOA effect minus surface effect; positive = aerosol heats the air)"},
     };
     for (const auto& x : effects) {
       if (!experiment::output_selected(chosen, x.name)) continue;
-      w.write(x.name, {"scenario"}, *x.values, {"W m-2", x.long_name, ""});
+      // (fill 0: the HDF5 fill value of the serial file's variable, written at once)
+      if (deferred) w.define_rows(x.name, {"scenario"}, {"W m-2", x.long_name, ""}, 0.0);
+      else w.write(x.name, {"scenario"}, *x.values, {"W m-2", x.long_name, ""});
       if (!coords.empty()) w.set_attribute(x.name, "coordinates", coords);
       w.set_attribute(x.name, "_FillValue", kFill);
       w.set_attribute(x.name, "missing_value", kFill);
@@ -352,7 +364,7 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
   }
   write_global_attributes(w, study.base(), templ.result);
   w.set_attribute("", "sweep_scenarios", static_cast<int>(n));
-  w.set_attribute("", "sweep_complete", partial && contents.offsets.size() < n ? 0 : 1);
+  w.set_attribute("", "sweep_complete", partial && !deferred && contents.offsets.size() < n ? 0 : 1);
   w.set_attribute("", "sweep_kind", study.plan().from_list ? "list" : "grid");
   std::vector<int> shape;
   std::string axes;
@@ -368,6 +380,38 @@ void write_sweep_file(const std::filesystem::path& path, const experiment::Study
                   "scenario index is row-major over sweep_axes (last axis fastest): reshape any (scenario, ...) "
                   "variable to sweep_shape + its other dimensions for an N-D grid");
   w.commit();
+}
+}  // namespace
+
+void write_sweep_file(const std::filesystem::path& path, const experiment::Study& study,
+                      const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
+                      const CheckpointContents& contents, bool partial) {
+  if (study.is_time_series()) {
+    write_time_series_file(path, study, templ, checkpoint, contents, partial);
+    return;
+  }
+  write_sweep(path, study, templ, &checkpoint, &contents, partial, 0);
+}
+
+void write_sweep_skeleton(const std::filesystem::path& path, const experiment::Study& study,
+                          const experiment::ScenarioResult& templ, std::size_t granule) {
+  if (study.is_time_series()) throw OutputError(path.string() + ": a time series has no parallel file layout");
+  write_sweep(path, study, templ, nullptr, nullptr, false, granule);
+}
+
+std::vector<RowDataset> sweep_row_datasets(const experiment::Study& study, const experiment::ScenarioResult& templ) {
+  const std::vector<std::string>& chosen = study.base().output.variables;
+  std::vector<RowDataset> out;
+  std::size_t values = 0;
+  RecordRows::for_each_record_field(result_fields(templ.result), [&](const Field& f, std::size_t offset) {
+    if (experiment::output_selected(chosen, f.name)) out.push_back({f.name, offset, f.values.size()});
+    values = offset + f.values.size();
+  });
+  if (study.computes_aerosol_effect()) {
+    for (std::size_t k = 0; k < 3; ++k)
+      if (experiment::output_selected(chosen, kEffectNames[k])) out.push_back({kEffectNames[k], values + k, 1});
+  }
+  return out;
 }
 
 void write_sweep_summary_csv(const std::filesystem::path& sweep_file, const std::filesystem::path& csv,

@@ -27,8 +27,20 @@ void set_field_attributes(Hdf5Writer& w, const Field& f);
 /// output.variables are in the record but not written.
 class RecordRows {
  public:
+  /// With `deferred`, the variables are declared but add() writes nothing: their rows are
+  /// written by the ranks of an MPI run (io/parallel_rows.hpp).
   RecordRows(Hdf5Writer& w, const std::vector<Field>& fields, const std::string& leading_dimension,
-             const std::vector<std::string>& chosen);
+             const std::vector<std::string>& chosen, bool deferred = false);
+  /// Visits the record's numeric per-scenario fields in order: visit(field, offset in the record).
+  template <class F>
+  static void for_each_record_field(const std::vector<Field>& fields, F&& visit) {
+    std::size_t offset = 0;
+    for (const Field& f : fields) {
+      if (!f.per_scenario || !f.texts.empty()) continue;
+      visit(f, offset);
+      offset += f.values.size();
+    }
+  }
   /// Values of these fields in one record (a record may hold more after them).
   [[nodiscard]] std::size_t record_values() const { return values_; }
   /// Offset of a field in the record (every per-scenario field, chosen or not). Throws when absent.
@@ -52,6 +64,7 @@ class RecordRows {
   Hdf5Writer& w_;
   std::vector<Slot> slots_;
   std::size_t values_ = 0, block_ = 1, block_start_ = 0, rows_ = 0;
+  bool deferred_ = false;
 };
 
 }  // namespace solstrata::io::detail

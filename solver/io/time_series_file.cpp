@@ -57,9 +57,15 @@ const DailyQuantity kDaily[] = {
 
 }  // namespace
 
-void write_time_series_file(const std::filesystem::path& path, const experiment::Study& study,
-                            const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
-                            const CheckpointContents& contents, bool partial) {
+namespace {
+/// The series file. `record(i, values)` gives case i's record (false: no checkpoint holds it);
+/// `where` names the records' origin in messages. With `granule` > 0 the per-step rows are
+/// deferred to the ranks of an MPI run (write_time_series_skeleton) and only the daily-total
+/// nodes are looked up.
+void write_series(const std::filesystem::path& path, const experiment::Study& study,
+                  const experiment::ScenarioResult& templ, const RecordLookup& record, std::size_t record_values,
+                  const std::string& where, bool partial, std::size_t granule) {
+  const bool deferred = granule > 0;
   const experiment::Experiment& base = study.base();
   const experiment::TimeSeriesSpec& ts = base.series;
   const experiment::TimePlan& tp = study.plan().time;
@@ -67,6 +73,7 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
   const std::vector<Field> fields = result_fields(templ.result);
 
   Hdf5Writer w(path);
+  if (deferred) w.defer_rows_to_ranks(granule);
   detail::add_result_dimensions(w, templ.result);
   w.add_coordinate("time", ts.times_unix, {kTimeUnits, "time of the step (UTC)", "time"});
   w.set_attribute("time", "calendar", kCalendar);
@@ -90,20 +97,22 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
   }
 
   // Per-step variables, written in blocks of steps.
-  detail::RecordRows rows(w, fields, "time", base.output.variables);
-  if (rows.record_values() != contents.header.record_values) {
-    throw OutputError(checkpoint.string() + ": record layout does not match this experiment");
+  detail::RecordRows rows(w, fields, "time", base.output.variables, deferred);
+  if (rows.record_values() != record_values) {
+    throw OutputError(where + ": record layout does not match this experiment");
   }
-  std::vector<int> complete(n, 0);
-  for (std::size_t i = 0; i < n; ++i) {
-    const auto it = contents.offsets.find(i);
-    if (it == contents.offsets.end()) {
-      if (!partial) throw OutputError(checkpoint.string() + ": step " + std::to_string(i) + " is missing");
+  std::vector<int> complete(n, deferred ? 1 : 0);
+  std::vector<double> rec;
+  std::size_t found = 0;
+  for (std::size_t i = 0; i < n && !deferred; ++i) {
+    if (!record(i, rec)) {
+      if (!partial) throw OutputError(where + ": step " + std::to_string(i) + " is missing");
       rows.add(nullptr);
       continue;
     }
     complete[i] = 1;
-    rows.add(read_checkpoint_record(checkpoint, it->second, contents.header.record_values).data());
+    ++found;
+    rows.add(rec.data());
   }
   rows.finish("");
   w.write("step_complete", {"time"}, std::span<const int>(complete),
@@ -140,13 +149,12 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
     }
     for (std::size_t k = 0; k < tp.n_nodes(); ++k) {
       const std::size_t day = tp.node_day[k];
-      const auto it = contents.offsets.find(n + k);
-      if (it == contents.offsets.end()) {
-        if (!partial) throw OutputError(checkpoint.string() + ": daily-total node " + std::to_string(k) + " is missing");
+      if (!record(n + k, rec)) {
+        if (!partial) throw OutputError(where + ": daily-total node " + std::to_string(k) + " is missing");
         day_done[day] = 0;
         continue;
       }
-      const std::vector<double> rec = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
+      ++found;
       if (s0 == 0.0 && rec[esf] > 0.0) s0 = rec[toa_normal] / rec[esf];
       for (std::size_t q = 0; q < std::size(kDaily); ++q) {
         if (!present[q]) continue;
@@ -195,7 +203,7 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
   detail::write_global_attributes(w, base, templ.result);
   w.set_attribute("", "featureType", "timeSeries");
   w.set_attribute("", "time_steps", static_cast<int>(n));
-  w.set_attribute("", "time_series_complete", partial && contents.offsets.size() < n_all ? 0 : 1);
+  w.set_attribute("", "time_series_complete", partial && found < n_all ? 0 : 1);
   w.set_attribute("", "utc_offset_minutes", ts.utc_offset_minutes);
   w.set_attribute("", "solar_position_algorithm",
                   "Michalsky (1988), Solar Energy 40, 227 (about 0.01 degree), refraction after Saemundsson (1986) "
@@ -213,6 +221,26 @@ void write_time_series_file(const std::filesystem::path& path, const experiment:
     w.set_attribute("", "plane_caution", sun::kPlaneCaution);
   }
   w.commit();
+}
+}  // namespace
+
+void write_time_series_file(const std::filesystem::path& path, const experiment::Study& study,
+                            const experiment::ScenarioResult& templ, const std::filesystem::path& checkpoint,
+                            const CheckpointContents& contents, bool partial) {
+  const RecordLookup record = [&](std::size_t i, std::vector<double>& values) {
+    const auto it = contents.offsets.find(i);
+    if (it == contents.offsets.end()) return false;
+    values = read_checkpoint_record(checkpoint, it->second, contents.header.record_values);
+    return true;
+  };
+  write_series(path, study, templ, record, contents.header.record_values, checkpoint.string(), partial, 0);
+}
+
+void write_time_series_skeleton(const std::filesystem::path& path, const experiment::Study& study,
+                                const experiment::ScenarioResult& templ, std::size_t granule,
+                                std::size_t record_values, const RecordLookup& nodes) {
+  if (granule == 0) throw OutputError(path.string() + ": the row granule of a parallel write must be positive");
+  write_series(path, study, templ, nodes, record_values, "the checkpoints", false, granule);
 }
 
 void write_time_series_csv(const std::filesystem::path& file, const std::filesystem::path& csv,
