@@ -72,23 +72,27 @@ const Fluxes& solve(const Problems& p, const Experiment& e) {
   return f;
 }
 
-/// Sums problem fluxes into groups (bands): group_of[problem] (or -1 to skip), weight per problem.
-void aggregate(const Fluxes& f, std::size_t n, std::size_t nlev, const std::vector<std::vector<std::size_t>>& groups,
-               std::vector<double>& dir, std::vector<double>& dif, std::vector<double>& up) {
-  dir.assign(groups.size() * nlev, 0.0);
-  dif.assign(groups.size() * nlev, 0.0);
-  up.assign(groups.size() * nlev, 0.0);
+/// Sums of consecutive problems into groups at every level, [group * nlev + level]: group b is
+/// problems offset + first[b] .. offset + first[b + 1] of the batch (the points of a bin, the bands
+/// of given optics), in order.
+void group_sums(const Fluxes& f, std::size_t stride, std::size_t offset, std::size_t nlev,
+              const std::vector<std::size_t>& first, std::vector<double>& dir, std::vector<double>& dif,
+              std::vector<double>& up) {
+  const std::size_t nbins = first.size() - 1;
+  dir.resize(nbins * nlev);
+  dif.resize(nbins * nlev);
+  up.resize(nbins * nlev);
   // Level outermost: the fluxes of one level are contiguous over problems.
   for (std::size_t lev = 0; lev < nlev; ++lev) {
-    const double* fd = f.dir.data() + lev * n;
-    const double* ff = f.dif.data() + lev * n;
-    const double* fu = f.up.data() + lev * n;
-    for (std::size_t b = 0; b < groups.size(); ++b) {
+    const double* fd = f.dir.data() + lev * stride + offset;
+    const double* ff = f.dif.data() + lev * stride + offset;
+    const double* fu = f.up.data() + lev * stride + offset;
+    for (std::size_t b = 0; b < nbins; ++b) {
       double sd = 0, sf = 0, su = 0;
-      for (std::size_t p : groups[b]) {
-        sd += fd[p];
-        sf += ff[p];
-        su += fu[p];
+      for (std::size_t q = first[b]; q < first[b + 1]; ++q) {
+        sd += fd[q];
+        sf += ff[q];
+        su += fu[q];
       }
       dir[b * nlev + lev] = sd;
       dif[b * nlev + lev] = sf;
@@ -178,18 +182,16 @@ RunResult run_given(const Experiment& e, double mu0, double factor) {
   r.n_layers = p.nl;
   r.n_bands = p.n;
   r.level_pressure_hpa = g.pressure_hpa;
-  std::vector<std::vector<std::size_t>> groups(p.n);
+  std::vector<std::size_t> each(p.n + 1);  // one band per group, then all bands in one
+  for (std::size_t b = 0; b <= p.n; ++b) each[b] = b;
   for (std::size_t b = 0; b < p.n; ++b) {
-    groups[b] = {b};
     r.band_names.push_back(g.bands[b].name);
     r.band_lower_nm.push_back(g.bands[b].lower_nm);
     r.band_upper_nm.push_back(g.bands[b].upper_nm);
     r.toa_normal_w_m2 += p.solar[b];
   }
-  aggregate(f, p.n, r.n_levels, groups, r.band_direct_down, r.band_diffuse_down, r.band_diffuse_up);
-  std::vector<std::vector<std::size_t>> all(1);
-  for (std::size_t b = 0; b < p.n; ++b) all[0].push_back(b);
-  aggregate(f, p.n, r.n_levels, all, r.direct_down, r.diffuse_down, r.diffuse_up);
+  group_sums(f, p.n, 0, r.n_levels, each, r.band_direct_down, r.band_diffuse_down, r.band_diffuse_up);
+  group_sums(f, p.n, 0, r.n_levels, {0, p.n}, r.direct_down, r.diffuse_down, r.diffuse_up);
   r.solar_description = "given in the experiment (given_optics)";
   return r;
 }
@@ -300,34 +302,6 @@ struct PreparedCase {
   std::size_t offset = 0;                 ///< the case's first problem in the batch
 };
 
-/// Sums of the points of each bin (points are ordered by bin: first[b] .. first[b + 1]) at every
-/// level, [bin * nlev + level], from the batch's fluxes of one case (problems offset .. offset + n).
-void bin_sums(const Fluxes& f, std::size_t stride, std::size_t offset, std::size_t nlev,
-              const std::vector<std::size_t>& first, std::vector<double>& dir, std::vector<double>& dif,
-              std::vector<double>& up) {
-  const std::size_t nbins = first.size() - 1;
-  dir.resize(nbins * nlev);
-  dif.resize(nbins * nlev);
-  up.resize(nbins * nlev);
-  // Level outermost: the fluxes of one level are contiguous over problems.
-  for (std::size_t lev = 0; lev < nlev; ++lev) {
-    const double* fd = f.dir.data() + lev * stride + offset;
-    const double* ff = f.dif.data() + lev * stride + offset;
-    const double* fu = f.up.data() + lev * stride + offset;
-    for (std::size_t b = 0; b < nbins; ++b) {
-      double sd = 0, sf = 0, su = 0;
-      for (std::size_t q = first[b]; q < first[b + 1]; ++q) {
-        sd += fd[q];
-        sf += ff[q];
-        su += fu[q];
-      }
-      dir[b * nlev + lev] = sd;
-      dif[b * nlev + lev] = sf;
-      up[b * nlev + lev] = su;
-    }
-  }
-}
-
 /// Writes case `c`'s problems into the batch `p` (sized for all cases) from c.offset on.
 void fill_problems(const PreparedCase& c, Problems& p) {
   const Experiment& e = *c.e;
@@ -404,7 +378,7 @@ RunResult finish_case(const PreparedCase& c, const Problems& p, const Fluxes& f)
   // bins instead of every point again).
   std::vector<double> bdir, bdif, bup;
   const std::size_t nlev = r.n_levels;
-  bin_sums(f, p.n, off, nlev, first, bdir, bdif, bup);
+  group_sums(f, p.n, off, nlev, first, bdir, bdif, bup);
   const auto from_bins = [&](const std::vector<double>& per_bin, std::size_t lo, std::size_t hi, double* out) {
     for (std::size_t lev = 0; lev < nlev; ++lev) out[lev] = 0.0;
     for (std::size_t i = lo; i < hi; ++i)
