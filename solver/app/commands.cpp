@@ -213,12 +213,7 @@ int run_sweep(const experiment::Study& study, const experiment::Experiment& e, c
       std::cout << "solstrata run: " << o.experiment << ": " << n << (study.is_time_series() ? " cases" : " scenarios");
       if (resuming) std::cout << " (" << have.offsets.size() << " from the checkpoint)";
       std::cout << " in " << secs << " s on " << opt.threads << " thread(s)\n";
-      if (study.is_time_series()) print_time_series_summary(std::cout, out, study);
-      if (with_effect) std::cout << "aerosol radiative effects: aerosol_effect_toa/surface/atmosphere (W m-2, negative = cooling)\n";
-      std::cout << "caution: " << experiment::kSolarCaution << "\n";
-      std::cout << "wrote " << out.string();
-      if (!e.output.csv.empty()) std::cout << " and " << e.output.csv.string();
-      std::cout << "\n";
+      print_study_outputs(std::cout, out, study, e, with_effect);
     }
     return kExitOk;
   } catch (const experiment::InputError& ex) {

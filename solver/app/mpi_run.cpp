@@ -391,12 +391,7 @@ int run_sweep_mpi(const experiment::Study& study, const experiment::Experiment& 
               << compute_seconds << " s to solve)\n";
     std::cout << "parallel write: " << double(bytes) / 1e6 << " MB of rows in " << write_seconds << " s ("
               << (write_seconds > 0 ? double(bytes) / 1e6 / write_seconds : 0.0) << " MB/s)\n";
-    if (series) print_time_series_summary(std::cout, out, study);
-    if (with_effect) std::cout << "aerosol radiative effects: aerosol_effect_toa/surface/atmosphere (W m-2, negative = cooling)\n";
-    std::cout << "caution: " << experiment::kSolarCaution << "\n";
-    std::cout << "wrote " << out.string();
-    if (!e.output.csv.empty()) std::cout << " and " << e.output.csv.string();
-    std::cout << "\n";
+    print_study_outputs(std::cout, out, study, e, with_effect);
   }
   return kExitOk;
 }

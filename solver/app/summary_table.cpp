@@ -171,4 +171,14 @@ void print_time_series_summary(std::ostream& os, const std::filesystem::path& fi
   if (plane) os << "caution: " << sun::kPlaneCaution << "\n";
 }
 
+void print_study_outputs(std::ostream& os, const std::filesystem::path& file, const experiment::Study& study,
+                         const experiment::Experiment& e, bool with_effect) {
+  if (study.is_time_series()) print_time_series_summary(os, file, study);
+  if (with_effect) os << "aerosol radiative effects: aerosol_effect_toa/surface/atmosphere (W m-2, negative = cooling)\n";
+  os << "caution: " << experiment::kSolarCaution << "\n";
+  os << "wrote " << file.string();
+  if (!e.output.csv.empty()) os << " and " << e.output.csv.string();
+  os << "\n";
+}
+
 }  // namespace solstrata::app

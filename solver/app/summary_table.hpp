@@ -20,4 +20,9 @@ void print_run_summary(std::ostream& os, const experiment::Experiment& e, const 
 /// The daily totals of a finished time-series file, one row per local day.
 void print_time_series_summary(std::ostream& os, const std::filesystem::path& file, const experiment::Study& study);
 
+/// The closing lines of a finished sweep or time series: the daily totals of a series, the legend
+/// of the aerosol radiative effects (when computed), the solar caution and the files written.
+void print_study_outputs(std::ostream& os, const std::filesystem::path& file, const experiment::Study& study,
+                         const experiment::Experiment& e, bool with_effect);
+
 }  // namespace solstrata::app
