@@ -73,14 +73,7 @@ int finish(pid_t pid) {
 }
 
 /// A sweep of 240 small scenarios (a few tenths of a second in a Release build).
-const char* kSweep = R"(atmosphere: {ozone_column_du: 300}
-aerosol: {type: continental_moderate, optical_depth: 0.2}
-sun: {solar_zenith_deg: 30}
-surface: {albedo: 0.2}
-spectrum:
-  bins: [{from_nm: 290, to_nm: 400, step_nm: 10}, {from_nm: 400, to_nm: 2000, step_nm: 100}]
-  bands: [{name: uv, from_nm: 290, to_nm: 400}, {name: rest, from_nm: 400, to_nm: 2000}]
-sweep:
+const std::string kSweep = solstrata::testing::kSmallColumn + R"(sweep:
   grid:
     - {parameter: aerosol.optical_depth, range: {from: 0.05, to: 1.5, count: 30}}
     - {parameter: sun.solar_zenith_deg, values: [0, 30, 50, 70]}

@@ -64,39 +64,19 @@ Launch size_limit(std::uintmax_t bytes) { return {"trap '' XFSZ &&", "", "prlimi
 Launch kill_after(std::uint64_t records) { return {"", "SOLSTRATA_TEST_KILL_AFTER=" + std::to_string(records), ""}; }
 
 /// A sweep of 24 scenarios on a small grid (a few hundredths of a second each).
-const std::string kSweep = R"(atmosphere: {ozone_column_du: 300}
-aerosol: {type: continental_moderate, optical_depth: 0.2}
-sun: {solar_zenith_deg: 30}
-surface: {albedo: 0.2}
-spectrum:
-  bins: [{from_nm: 290, to_nm: 400, step_nm: 10}, {from_nm: 400, to_nm: 2000, step_nm: 100}]
-  bands: [{name: uv, from_nm: 290, to_nm: 400}, {name: rest, from_nm: 400, to_nm: 2000}]
-sweep:
+const std::string kSweep = solstrata::testing::kSmallColumn + R"(sweep:
   grid:
     - {parameter: aerosol.optical_depth, values: [0.05, 0.2, 0.5, 1.0, 1.5, 2.0]}
     - {parameter: sun.solar_zenith_deg, values: [0, 30, 50, 70]}
 )";
 
 /// One scenario on the same grid.
-const std::string kSingle = R"(atmosphere: {ozone_column_du: 300}
-aerosol: {type: continental_moderate, optical_depth: 0.2}
-sun: {solar_zenith_deg: 30}
-surface: {albedo: 0.2}
-spectrum:
-  bins: [{from_nm: 290, to_nm: 400, step_nm: 10}, {from_nm: 400, to_nm: 2000, step_nm: 100}]
-  bands: [{name: uv, from_nm: 290, to_nm: 400}, {name: rest, from_nm: 400, to_nm: 2000}]
-)";
+const std::string kSingle = solstrata::testing::kSmallColumn;
 
 /// A day of hourly steps at an invented site, with daily totals.
 const std::string kSeries = R"(site: {latitude_deg: 47.3, longitude_deg: 8.6}
 times: {start: "2026-06-15T00:00:00+02:00", end: "2026-06-15T23:00:00+02:00", step_minutes: 60}
-atmosphere: {ozone_column_du: 300, precipitable_water_cm: 1.5}
-aerosol: {type: continental_moderate, optical_depth: 0.15}
-surface: {albedo: 0.2}
-spectrum:
-  bins: [{from_nm: 300, to_nm: 400, step_nm: 25}, {from_nm: 400, to_nm: 1000, step_nm: 100}, {from_nm: 1000, to_nm: 3000, step_nm: 500}]
-  bands: [{name: uv, from_nm: 300, to_nm: 400}, {name: visible, from_nm: 400, to_nm: 700}, {name: infrared, from_nm: 700, to_nm: 3000}]
-)";
+)" + solstrata::testing::kSeriesColumn;
 
 /// Names in `dir` other than the experiment.
 std::vector<std::string> outputs(const fs::path& dir) {

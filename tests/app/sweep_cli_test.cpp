@@ -46,14 +46,7 @@ Outcome sh(const std::string& args, const std::string& env = "") {
   return {code, ss.str()};
 }
 
-const char* kSweep = R"(atmosphere: {ozone_column_du: 300}
-aerosol: {type: continental_moderate, optical_depth: 0.2}
-sun: {solar_zenith_deg: 30}
-surface: {albedo: 0.2}
-spectrum:
-  bins: [{from_nm: 290, to_nm: 400, step_nm: 10}, {from_nm: 400, to_nm: 2000, step_nm: 100}]
-  bands: [{name: uv, from_nm: 290, to_nm: 400}, {name: rest, from_nm: 400, to_nm: 2000}]
-sweep:
+const std::string kSweep = solstrata::testing::kSmallColumn + R"(sweep:
   grid:
     - {parameter: aerosol.optical_depth, range: {from: 0.05, to: 1.5, count: 6}}
     - {parameter: sun.solar_zenith_deg, values: [0, 30, 50, 70]}
@@ -301,16 +294,10 @@ sweep:
 namespace {
 
 /// A two-day hourly series at an invented site over a cheap column, with daily totals and a plane.
-const char* kSeries = R"(site: {latitude_deg: 47.3, longitude_deg: 8.6}
+const std::string kSeries = R"(site: {latitude_deg: 47.3, longitude_deg: 8.6}
 times: {start: "2026-06-15T00:00:00+02:00", end: "2026-06-16T23:00:00+02:00", step_minutes: 60}
-atmosphere: {ozone_column_du: 300, precipitable_water_cm: 1.5}
-aerosol: {type: continental_moderate, optical_depth: 0.15}
-surface: {albedo: 0.2}
 plane_of_array: {tilt_deg: 30, azimuth_deg: 180}
-spectrum:
-  bins: [{from_nm: 300, to_nm: 400, step_nm: 25}, {from_nm: 400, to_nm: 1000, step_nm: 100}, {from_nm: 1000, to_nm: 3000, step_nm: 500}]
-  bands: [{name: uv, from_nm: 300, to_nm: 400}, {name: visible, from_nm: 400, to_nm: 700}, {name: infrared, from_nm: 700, to_nm: 3000}]
-)";
+)" + solstrata::testing::kSeriesColumn;
 
 }  // namespace
 

@@ -12,6 +12,7 @@
 #include "io/result_fields.hpp"
 #include "sun/position.hpp"
 #include "sun/tilted_plane.hpp"
+#include "support/fixtures.hpp"
 
 using namespace solstrata::experiment;
 namespace fs = std::filesystem;
@@ -40,13 +41,7 @@ surface: {albedo: 0.2}
 )";
 
 /// A small atmosphere-mode column.
-const std::string kAtmosphere = R"(atmosphere: {ozone_column_du: 300, precipitable_water_cm: 1.5}
-aerosol: {type: continental_moderate, optical_depth: 0.15}
-surface: {albedo: 0.2}
-spectrum:
-  bins: [{from_nm: 300, to_nm: 400, step_nm: 25}, {from_nm: 400, to_nm: 1000, step_nm: 100}, {from_nm: 1000, to_nm: 3000, step_nm: 500}]
-  bands: [{name: uv, from_nm: 300, to_nm: 400}, {name: visible, from_nm: 400, to_nm: 700}, {name: infrared, from_nm: 700, to_nm: 3000}]
-)";
+const std::string& kAtmosphere = solstrata::testing::kSeriesColumn;
 
 fs::path temp_dir() {
   static const fs::path d = [] {

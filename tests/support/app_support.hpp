@@ -9,6 +9,7 @@
 #include <string>
 
 #include "io/hdf5_reader.hpp"
+#include "support/fixtures.hpp"
 
 namespace solstrata::testing {
 
